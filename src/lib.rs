@@ -1,0 +1,41 @@
+//! termsight: term analysis of atomic spectra.
+//!
+//! A measured line list goes in; out come ranked assignments of each line to a
+//! transition of a known species (with the probability that the match is a chance
+//! coincidence), optimised level energies, and the Slater parameters (direct F^k,
+//! exchange G^k, spin–orbit ζ, configuration energies E_av) of a level model fitted
+//! to those levels.
+//!
+//! # Overview
+//!
+//! Data flows one way: read → model → predict → match → refine → report.
+//!
+//! - [`units`]: wavelengths, wavenumbers, energies; air↔vacuum; uncertainty propagation.
+//! - [`notation`]: configurations, terms, J values and species labels.
+//! - [`linelist`]: reading measured line lists.
+//! - [`levels`]: level tables (embedded reference levels), Ritz predictions, level optimisation.
+//! - [`angular`]: 3j and 6j symbols, Condon–Shortley c^k coefficients.
+//! - [`structure`]: the determinantal / LS intermediate-coupling level model.
+//! - [`radial`]: radial wavefunctions and Slater, spin–orbit and dipole integrals.
+//! - [`transitions`]: E1 selection rules, line strengths, gf and A values.
+//! - [`assign`]: candidate search, ranking, chance-coincidence probabilities, blends.
+//! - [`fit`]: least-squares fits of model parameters to observed levels.
+//! - [`report`]: terminal tables, CSV, JSON and SVG writers (return strings, never touch files).
+//! - [`cli`]: the command-line front end; the only module that reads or writes files.
+//!
+//! Energies are in cm⁻¹ throughout unless a name says otherwise (`_hartree`, `_ev`).
+#![deny(missing_docs)]
+
+pub mod angular;
+pub mod assign;
+pub mod cli;
+pub mod fit;
+pub mod levels;
+pub mod linelist;
+pub mod location;
+pub mod notation;
+pub mod radial;
+pub mod report;
+pub mod structure;
+pub mod transitions;
+pub mod units;
