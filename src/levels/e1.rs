@@ -190,7 +190,10 @@ mod tests {
         // 6s7s → 6p2 moves two electrons (Hg I labels).
         let (_, f) = classify(&label("5d10.6s.7s 3S 1"), &label("5d10.6s.6p 3P° 1"));
         assert!(!f.jump_forbidden); // 7s → 6p
-        let (_, f) = classify(&label("5d10.6p2 3P 1"), &label("5d9.6s2.(2D<5/2>).6p 2[3/2]° 1"));
+        let (_, f) = classify(
+            &label("5d10.6p2 3P 1"),
+            &label("5d9.6s2.(2D<5/2>).6p 2[3/2]° 1"),
+        );
         assert!(f.jump_forbidden); // 6p2 → 5d9 6s2 6p: two electrons move
     }
 
@@ -204,7 +207,10 @@ mod tests {
         assert_eq!(rules, SelectionRules::ParityAndJ);
         assert_eq!(flags, TransitionFlags::default());
         // One LS label and one pair label: still no LS rules.
-        let (rules, _) = classify(&label("2s2.2p6 1S 0"), &label("2s2.2p5.(2P°<3/2>).3s 2[3/2]° 1"));
+        let (rules, _) = classify(
+            &label("2s2.2p6 1S 0"),
+            &label("2s2.2p5.(2P°<3/2>).3s 2[3/2]° 1"),
+        );
         assert_eq!(rules, SelectionRules::ParityAndJ);
     }
 

@@ -187,7 +187,10 @@ mod tests {
         // 1s2p is odd ((−1)^1): an even 3P term cannot belong to it.
         let e = LevelLabel::from_fields("1s.2p", "3P", "1").unwrap_err();
         assert_eq!(e.part, "term");
-        assert!(e.problem.contains("even") && e.problem.contains("odd"), "{e}");
+        assert!(
+            e.problem.contains("even") && e.problem.contains("odd"),
+            "{e}"
+        );
     }
 
     #[test]

@@ -28,6 +28,7 @@
 //! assert_eq!(upper.label.to_string(), "1s.3d 1D 2");
 //! ```
 
+pub(crate) mod csv_text;
 pub mod e1;
 mod embedded;
 mod label;
@@ -40,4 +41,6 @@ pub use embedded::{EMBEDDED_TABLES, EmbeddedTable, embedded_table};
 pub use label::{LabelError, LevelLabel};
 pub use predicted::{PredictedLine, PredictionError, Predictions, SpeciesOrigin, SpeciesSummary};
 pub use ritz::{predict_from_table, ritz_wavenumber};
-pub use table::{LEVEL_COLUMNS, Level, LevelTable, LevelTableError, read_level_table};
+pub use table::{
+    LEVEL_COLUMNS, Level, LevelTable, LevelTableError, MAX_LEVEL_TABLE_BYTES, read_level_table,
+};

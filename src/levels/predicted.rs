@@ -63,9 +63,9 @@ impl SpeciesSummary {
         match (self.ls_lines, self.parity_and_j_lines) {
             (0, 0) => "no lines".into(),
             (ls, 0) => format!("LS rules (ΔS = 0, ΔL = 0, ±1) examined for all {ls} lines"),
-            (0, other) => format!(
-                "parity and J rules only for all {other} lines (labels not in LS coupling)"
-            ),
+            (0, other) => {
+                format!("parity and J rules only for all {other} lines (labels not in LS coupling)")
+            }
             (ls, other) => format!(
                 "LS rules examined for {ls} lines between LS labels; parity and J rules only \
                  for {other} lines with labels in another coupling"
@@ -169,8 +169,7 @@ impl Predictions {
                     problem: "its origin is given twice".into(),
                 });
             }
-            if !(origin.model_uncertainty_cm1.is_finite() && origin.model_uncertainty_cm1 >= 0.0)
-            {
+            if !(origin.model_uncertainty_cm1.is_finite() && origin.model_uncertainty_cm1 >= 0.0) {
                 return Err(PredictionError::BadSpecies {
                     species: origin.species,
                     problem: format!(
@@ -261,7 +260,8 @@ impl Predictions {
 
     /// The model uncertainty of `species`, cm⁻¹ (0 if the set does not have it).
     pub fn model_uncertainty_cm1(&self, species: Species) -> f64 {
-        self.summary(species).map_or(0.0, |s| s.model_uncertainty_cm1)
+        self.summary(species)
+            .map_or(0.0, |s| s.model_uncertainty_cm1)
     }
 
     /// The lower and upper levels of a line of this set (`None` for a line of

@@ -48,8 +48,7 @@ pub fn predict_from_table(table: &LevelTable) -> Result<Predictions, PredictionE
                 if !is_e1_candidate(&a.label, &b.label) || a.energy_cm1 == b.energy_cm1 {
                     continue;
                 }
-                let ((lower, lower_level), (upper, upper_level)) = if a.energy_cm1 < b.energy_cm1
-                {
+                let ((lower, lower_level), (upper, upper_level)) = if a.energy_cm1 < b.energy_cm1 {
                     ((i, a), (k, b))
                 } else {
                     ((k, b), (i, a))
@@ -87,7 +86,8 @@ mod tests {
     use crate::levels::{SelectionRules, embedded::EMBEDDED_TABLES, read_level_table};
 
     fn table(body: &str) -> LevelTable {
-        let text = format!("species,configuration,term,J,energy_cm1,uncertainty_cm1,source\n{body}");
+        let text =
+            format!("species,configuration,term,J,energy_cm1,uncertainty_cm1,source\n{body}");
         read_level_table(text.as_bytes(), "t.csv").unwrap()
     }
 

@@ -1,10 +1,11 @@
 //! Level tables: reading `species,configuration,term,J,energy_cm1,uncertainty_cm1,source`.
 
 use std::collections::HashMap;
-use std::io::{BufRead, Read};
+use std::io::BufRead;
 
 use serde::{Deserialize, Serialize};
 
+use super::csv_text::{LineStarts, csv_reader, read_text};
 use super::label::LevelLabel;
 use crate::location::Location;
 use crate::notation::Species;
@@ -165,12 +166,12 @@ pub fn read_level_table(
     mut reader: impl BufRead,
     source: &str,
 ) -> Result<LevelTable, LevelTableError> {
-    let text = read_text(&mut reader, source)?;
-    let mut csv = csv::ReaderBuilder::new()
-        .flexible(true)
-        .trim(csv::Trim::All)
-        .has_headers(false)
-        .from_reader(text.as_bytes());
+    let text =
+        read_text(&mut reader, MAX_LEVEL_TABLE_BYTES).map_err(|e| LevelTableError::Unreadable {
+            location: Location::line(source, e.line()),
+            message: e.message("a level table"),
+        })?;
+    let mut csv = csv_reader(&text);
     let lines = LineStarts::new(&text);
     let mut records = csv.records();
     let unreadable = |e: csv::Error| LevelTableError::Unreadable {
@@ -274,7 +275,9 @@ fn read_row(
         location: Location::line(source, line).column(column),
         problem,
     };
-    let species: Species = field(0).parse().map_err(|e| bad("species", format!("{e}")))?;
+    let species: Species = field(0)
+        .parse()
+        .map_err(|e| bad("species", format!("{e}")))?;
     let label = LevelLabel::from_fields(field(1), field(2), field(3))
         .map_err(|e| bad(e.part, e.problem))?;
     if !label.j_fits(species) {
@@ -316,83 +319,9 @@ fn read_row(
 /// (about a megabyte), low enough that a wrong file fails quickly.
 pub const MAX_LEVEL_TABLE_BYTES: u64 = 64 << 20;
 
-/// The whole text, with comment lines (first non-blank character `#`) made blank.
-fn read_text(reader: &mut impl BufRead, source: &str) -> Result<String, LevelTableError> {
-    let mut bytes = Vec::new();
-    reader
-        .take(MAX_LEVEL_TABLE_BYTES + 1)
-        .read_to_end(&mut bytes)
-        .map_err(|e| LevelTableError::Unreadable {
-            location: Location::source(source),
-            message: e.to_string(),
-        })?;
-    if bytes.len() as u64 > MAX_LEVEL_TABLE_BYTES {
-        return Err(LevelTableError::Unreadable {
-            location: Location::source(source),
-            message: format!(
-                "larger than {} MiB, too large for a level table",
-                MAX_LEVEL_TABLE_BYTES >> 20
-            ),
-        });
-    }
-    let text = String::from_utf8(bytes).map_err(|e| {
-        let valid = e.utf8_error().valid_up_to();
-        let line = 1 + e.as_bytes().iter().take(valid).filter(|&&b| b == b'\n').count();
-        LevelTableError::Unreadable {
-            location: Location::line(source, line),
-            message: "the text is not valid UTF-8".into(),
-        }
-    })?;
-    let text = text.strip_prefix('\u{feff}').unwrap_or(&text);
-    Ok(text
-        .split_inclusive('\n')
-        .map(|line| {
-            if line.trim_start().starts_with('#') {
-                if line.ends_with('\n') { "\n" } else { "" }
-            } else {
-                line
-            }
-        })
-        .collect())
-}
-
 /// A finite number, or `None`.
 fn number(text: &str) -> Option<f64> {
     text.parse::<f64>().ok().filter(|v| v.is_finite())
-}
-
-/// Turns the CSV reader's positions into 1-based line numbers of the file (its own
-/// line count skips blank lines). A record's position is where the reader started
-/// looking for it, before the blank lines it skipped.
-struct LineStarts<'t> {
-    text: &'t [u8],
-    starts: Vec<u64>,
-}
-
-impl<'t> LineStarts<'t> {
-    fn new(text: &'t str) -> LineStarts<'t> {
-        let starts = std::iter::once(0)
-            .chain(text.match_indices('\n').map(|(i, _)| i as u64 + 1))
-            .collect();
-        LineStarts {
-            text: text.as_bytes(),
-            starts,
-        }
-    }
-
-    fn line_of(&self, byte: u64) -> usize {
-        let skipped = self
-            .text
-            .iter()
-            .skip(byte as usize)
-            .take_while(|b| matches!(b, b'\n' | b'\r'))
-            .count() as u64;
-        self.starts.partition_point(|&start| start <= byte + skipped)
-    }
-
-    fn line_of_record(&self, record: &csv::StringRecord) -> usize {
-        record.position().map_or(0, |p| self.line_of(p.byte()))
-    }
 }
 
 fn csv_message(error: &csv::Error) -> String {
@@ -422,7 +351,10 @@ mod tests {
         let level = &table.levels[0];
         assert_eq!(level.label.to_string(), "1s.2p 3P° 1");
         assert_eq!(level.species.to_string(), "He I");
-        assert_eq!((level.energy_cm1, level.uncertainty_cm1), (169086.843, 0.001));
+        assert_eq!(
+            (level.energy_cm1, level.uncertainty_cm1),
+            (169086.843, 0.001)
+        );
         assert_eq!(level.source, "x");
     }
 
@@ -434,9 +366,16 @@ mod tests {
             "t.csv:2: column 'energy_cm1': 'abc' is not an energy: expected a number in cm-1"
         );
         let e = read("He I,1s.2p,3P*,1,1.0,-0.1,x\n").unwrap_err();
-        assert!(e.to_string().starts_with("t.csv:2: column 'uncertainty_cm1'"), "{e}");
+        assert!(
+            e.to_string()
+                .starts_with("t.csv:2: column 'uncertainty_cm1'"),
+            "{e}"
+        );
         let e = read("He I,1s.2p,3P*,1,NaN,0.1,x\n").unwrap_err();
-        assert!(e.to_string().starts_with("t.csv:2: column 'energy_cm1'"), "{e}");
+        assert!(
+            e.to_string().starts_with("t.csv:2: column 'energy_cm1'"),
+            "{e}"
+        );
         let e = read("He I,1s.2p,3P,1,1.0,0.1,x\n").unwrap_err();
         assert!(e.to_string().starts_with("t.csv:2: column 'term'"), "{e}");
         let e = read("He I,1s.2p,3P*,3,1.0,0.1,x\n").unwrap_err();
@@ -444,7 +383,10 @@ mod tests {
         let e = read("He I,1s.2p,3P*,,1.0,0.1,x\n").unwrap_err();
         assert!(e.to_string().starts_with("t.csv:2: column 'J'"), "{e}");
         let e = read("Hx I,1s.2p,3P*,1,1.0,0.1,x\n").unwrap_err();
-        assert!(e.to_string().starts_with("t.csv:2: column 'species'"), "{e}");
+        assert!(
+            e.to_string().starts_with("t.csv:2: column 'species'"),
+            "{e}"
+        );
         let e = read("He I,1s.2p,3P*,1,1.0\n").unwrap_err();
         assert_eq!(e.to_string(), "t.csv:2: 5 fields where the header has 7");
     }
@@ -460,7 +402,8 @@ mod tests {
     fn duplicate_levels_name_both_lines() {
         let e = read("He I,1s.2p,3P*,1,1.0,0.1,x\nHe I,1s.2p,3P°,1,1.0,0.1,y\n").unwrap_err();
         assert!(
-            e.to_string().starts_with("t.csv:3: level He I 1s.2p 3P° 1 is already given on line 2"),
+            e.to_string()
+                .starts_with("t.csv:3: level He I 1s.2p 3P° 1 is already given on line 2"),
             "{e}"
         );
         // The same label in another species is a different level.
@@ -475,10 +418,14 @@ mod tests {
         let e = read_level_table("# only a comment\n".as_bytes(), "t.csv").unwrap_err();
         assert!(matches!(e, LevelTableError::Empty { .. }), "{e}");
         let e = read("").unwrap_err();
-        assert_eq!(e.to_string(), "t.csv:1: the level table has a header but no levels");
+        assert_eq!(
+            e.to_string(),
+            "t.csv:1: the level table has a header but no levels"
+        );
         let e = read_level_table("species,term,J\n".as_bytes(), "t.csv").unwrap_err();
         assert!(
-            e.to_string().starts_with("t.csv:1: no column 'configuration' in the header"),
+            e.to_string()
+                .starts_with("t.csv:1: no column 'configuration' in the header"),
             "{e}"
         );
     }

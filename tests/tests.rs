@@ -1,0 +1,3 @@
+//! Integration tests, one binary: each module is a topic.
+
+mod assign_reference;
