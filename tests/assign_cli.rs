@@ -128,7 +128,7 @@ fn reads_standard_input_and_a_level_table_of_ones_own() {
         &levels,
         "species,configuration,term,J,energy_cm1,uncertainty_cm1,source\n\
          He I,1s.2p,1P*,1,171134.896946,0.000001,ASD 2014\n\
-         He I,1s.3d,1D,2,186104.9668,0.0001,ASD 2014\n",
+         He I,1s.3d,1D,2,186104.9666893,0.0000001,ASD 2014\n",
     )
     .unwrap();
     let mut child = Command::new(env!("CARGO_BIN_EXE_termsight"))

@@ -35,12 +35,12 @@
 //! use termsight::linelist::{GivenPosition, ObservedLine};
 //! let helium = EMBEDDED_TABLES.iter().find(|t| t.species == "He I").unwrap();
 //! let predictions = predict_from_table(&helium.load().unwrap()).unwrap();
-//! // A line at 14959.1 cm⁻¹ ± 0.05 (He I 667.8 nm in air).
+//! // A line at 14970.1 cm⁻¹ ± 0.05 (He I 667.8 nm in air).
 //! let line = ObservedLine {
 //!     row: 1,
 //!     source_line: 2,
-//!     given: GivenPosition::Wavenumber { value: 14959.1 },
-//!     wavenumber_cm1: 14959.1,
+//!     given: GivenPosition::Wavenumber { value: 14970.1 },
+//!     wavenumber_cm1: 14970.1,
 //!     uncertainty_cm1: 0.05,
 //!     intensity: None,
 //!     extra: vec![],

@@ -17,11 +17,11 @@
 //! use termsight::levels::{EMBEDDED_TABLES, predict_from_table};
 //! let helium = EMBEDDED_TABLES.iter().find(|t| t.species == "He I").unwrap();
 //! let predictions = predict_from_table(&helium.load().unwrap()).unwrap();
-//! // He I 1s2p 1P°1 – 1s3d 1D2, the red line at 667.8 nm in air (14959.1 cm⁻¹ vacuum).
+//! // He I 1s2p 1P°1 – 1s3d 1D2, the red line at 667.8 nm in air (14970.07 cm⁻¹).
 //! let red = predictions
 //!     .lines()
 //!     .iter()
-//!     .find(|l| (l.wavenumber_cm1 - 14959.1).abs() < 0.1)
+//!     .find(|l| (l.wavenumber_cm1 - 14970.07).abs() < 0.01)
 //!     .unwrap();
 //! let (lower, upper) = predictions.levels_of(red).unwrap();
 //! assert_eq!(lower.label.to_string(), "1s.2p 1P° 1");

@@ -137,7 +137,7 @@ pub enum LevelTableError {
         /// The species.
         species: Species,
         /// The label.
-        label: LevelLabel,
+        label: Box<LevelLabel>,
         /// Line of the first occurrence.
         first_line: usize,
     },
@@ -215,7 +215,7 @@ pub fn read_level_table(
             return Err(LevelTableError::Duplicate {
                 location: Location::line(source, line),
                 species: level.species,
-                label: level.label,
+                label: Box::new(level.label),
                 first_line,
             });
         }
