@@ -24,9 +24,11 @@ pub(crate) enum Delimiter {
 }
 
 impl Delimiter {
-    /// The delimiter of a list whose header line is `header`: a comma if there is one,
-    /// else a tab if there is one, else whitespace.
+    /// The delimiter of a list whose header line is `header`: a comma if there is one
+    /// before any `#`, else a tab if there is one, else whitespace. (Looking only
+    /// before the `#` keeps a trailing comment of a whitespace header from deciding.)
     pub(crate) fn detect(header: &str) -> Delimiter {
+        let header = header.split_once('#').map_or(header, |(before, _)| before);
         if header.contains(',') {
             Delimiter::Comma
         } else if header.contains('\t') {
@@ -198,6 +200,7 @@ mod tests {
         assert_eq!(Delimiter::detect("a, b\tc"), Delimiter::Comma);
         assert_eq!(Delimiter::detect("a\tb c"), Delimiter::Tab);
         assert_eq!(Delimiter::detect("a  b"), Delimiter::Whitespace);
+        assert_eq!(Delimiter::detect("a b # x, y"), Delimiter::Whitespace);
     }
 
     #[test]
