@@ -1,6 +1,8 @@
 //! The header line: what each column holds.
 
-use super::error::{LineListError, POSITION_COLUMNS, UNCERTAINTY_COLUMNS};
+use std::collections::HashMap;
+
+use super::error::{LineListError, POSITION_COLUMNS, UNCERTAINTY_COLUMNS, shorten};
 use super::fields::Fields;
 use super::options::UncertaintyUnit;
 use crate::location::Location;
@@ -61,6 +63,7 @@ impl Layout {
         let mut medium = None;
         let mut intensity = None;
         let mut extras = Vec::new();
+        let mut first_index: HashMap<&str, usize> = HashMap::with_capacity(names.len());
         for (index, (name, lower)) in names.iter().zip(&lowered).enumerate() {
             if name.is_empty() {
                 return Err(LineListError::EmptyColumnName {
@@ -68,9 +71,8 @@ impl Layout {
                     index: index + 1,
                 });
             }
-            if let Some(first) = lowered.iter().position(|other| other == lower)
-                && first < index
-            {
+            // A map, not a scan per column: a garbage header may have 100 000 columns.
+            if let Some(first) = first_index.insert(lower.as_str(), index) {
                 return Err(LineListError::DuplicateColumn {
                     location: at(name),
                     first_index: first + 1,
@@ -106,11 +108,7 @@ impl Layout {
         }
         let position = position.ok_or_else(|| LineListError::NoPositionColumn {
             location: Location::line(source, line),
-            found: names
-                .iter()
-                .map(|name| format!("'{}'", super::error::shorten(name)))
-                .collect::<Vec<_>>()
-                .join(", "),
+            found: quoted_list(&names),
         })?;
         Ok(Layout {
             line,
@@ -132,6 +130,24 @@ impl Layout {
     pub(crate) fn name(&self, index: usize) -> &str {
         self.names.get(index).map_or("", String::as_str)
     }
+}
+
+/// Most column names quoted in a message.
+const LISTED_NAMES: usize = 12;
+
+/// `'a', 'b', 'c'`: the first [`LISTED_NAMES`] names, each shortened, then how many
+/// more there are.
+fn quoted_list(names: &[String]) -> String {
+    let mut list = names
+        .iter()
+        .take(LISTED_NAMES)
+        .map(|name| format!("'{}'", shorten(name)))
+        .collect::<Vec<_>>()
+        .join(", ");
+    if names.len() > LISTED_NAMES {
+        list.push_str(&format!(" and {} more", names.len() - LISTED_NAMES));
+    }
+    list
 }
 
 /// What a lower-cased column name holds; for a known quantity with an unknown unit,
@@ -170,6 +186,14 @@ fn classify(lower: &str) -> Result<Role, &'static str> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn long_lists_of_names_are_cut_in_messages() {
+        let names: Vec<String> = (0..100).map(|i| format!("c{i}")).collect();
+        let list = quoted_list(&names);
+        assert!(list.starts_with("'c0', 'c1', "), "{list}");
+        assert!(list.ends_with("'c11' and 88 more"), "{list}");
+    }
 
     #[test]
     fn classifies_column_names() {

@@ -14,8 +14,9 @@
 //! - **Columns** are separated by commas (CSV), tabs (TSV) or runs of spaces and
 //!   tabs. The separator is taken from the header line: a comma there means CSV,
 //!   else a tab means TSV, else whitespace. CSV and TSV fields may be quoted with
-//!   `"` (a doubled `""` inside quotes is one quote); a quoted field must end on its
-//!   own line. Spaces around fields are ignored.
+//!   `"` (a doubled `""` inside quotes is one quote); as in RFC 4180 the quote must
+//!   be the field's first character (right after the separator), and a quoted field
+//!   must end on its own line. Spaces around fields are ignored.
 //! - **Comments**: a line whose first non-blank character is `#` is a comment, before
 //!   or after the header. In the whitespace format a `#` also ends the data of a row
 //!   (a trailing comment); in CSV and TSV a `#` inside a row is data. Blank lines,
@@ -62,10 +63,10 @@
 //! ```
 //! use termsight::linelist::{read_line_list, ReadOptions};
 //! let text = "\
-//! # hollow-cathode scan 3, demo data
+//! ## hollow-cathode scan 3, demo data
 //! wavelength_nm, uncertainty_nm, intensity, note
 //! 587.5621,      0.0005,         1200,      strong
-//! 388.8648,      0.0010,         300,       \"blend?\"
+//! 388.8648,      0.0010,         300,\"blend?\"
 //! ";
 //! let list = read_line_list(text.as_bytes(), "scan3.csv", &ReadOptions::default()).unwrap();
 //! assert_eq!(list.lines.len(), 2);

@@ -590,6 +590,43 @@ fn a_hundred_megabytes_of_garbage_fail_at_once() {
 }
 
 #[test]
+fn a_header_of_a_hundred_thousand_columns_fails_quickly() {
+    // Distinct names, no position column: each name is looked at once.
+    let header: Vec<String> = (0..100_000).map(|i| format!("c{i}")).collect();
+    let message = error(&format!("{}\n1\n", header.join(",")));
+    assert!(message.starts_with("lines.csv:1: the header names no position column"));
+    assert!(message.ends_with("'c11' and 99988 more)"), "{message}");
+}
+
+/// A source that gives `good` and then fails.
+struct FailingAfter<'a> {
+    good: &'a [u8],
+}
+
+impl Read for FailingAfter<'_> {
+    fn read(&mut self, buf: &mut [u8]) -> io::Result<usize> {
+        if self.good.is_empty() {
+            return Err(io::Error::other("device went away"));
+        }
+        let n = self.good.read(buf)?;
+        Ok(n)
+    }
+}
+
+#[test]
+fn a_read_error_names_the_source_and_line() {
+    let source = FailingAfter {
+        good: b"wavenumber_cm1,uncertainty_cm1\n15000,0.1\n",
+    };
+    let error =
+        read_line_list(BufReader::new(source), "scan.csv", &ReadOptions::default()).unwrap_err();
+    assert_eq!(
+        error.to_string(),
+        "scan.csv:3: could not be read: device went away"
+    );
+}
+
+#[test]
 fn an_overlong_row_is_skipped_in_bounded_memory() {
     let options = ReadOptions {
         skip_bad: true,
