@@ -27,16 +27,38 @@ impl Delimiter {
     /// The delimiter of a list whose header line is `header`: a comma if there is one
     /// before any `#`, else a tab if there is one, else whitespace. (Looking only
     /// before the `#` keeps a trailing comment of a whitespace header from deciding.)
-    pub(crate) fn detect(header: &str) -> Delimiter {
-        let header = header.split_once('#').map_or(header, |(before, _)| before);
-        if header.contains(',') {
+    pub(crate) fn detect(header: &[u8]) -> Delimiter {
+        let header = before_comment(header);
+        if header.contains(&b',') {
             Delimiter::Comma
-        } else if header.contains('\t') {
+        } else if header.contains(&b'\t') {
             Delimiter::Tab
         } else {
             Delimiter::Whitespace
         }
     }
+}
+
+impl Delimiter {
+    /// The text of a line that this format reads: in the whitespace format the part
+    /// before any `#` (so a trailing comment need not be UTF-8), else the whole line.
+    /// `None` if that part is not valid UTF-8.
+    pub(crate) fn text_of(self, line: &[u8]) -> Option<&str> {
+        let data = match self {
+            Delimiter::Whitespace => before_comment(line),
+            Delimiter::Comma | Delimiter::Tab => line,
+        };
+        std::str::from_utf8(data).ok()
+    }
+}
+
+/// The bytes before the first `#` (all of them if there is none). The byte `#` never
+/// occurs inside a multi-byte UTF-8 character, so this cuts between characters.
+fn before_comment(line: &[u8]) -> &[u8] {
+    line.iter()
+        .position(|&byte| byte == b'#')
+        .and_then(|at| line.get(..at))
+        .unwrap_or(line)
 }
 
 /// The fields of one line, trimmed.
@@ -90,6 +112,11 @@ impl Splitter {
             ends: Vec::new(),
             ranges: Vec::new(),
         }
+    }
+
+    /// The format this splitter reads.
+    pub(crate) fn delimiter(&self) -> Delimiter {
+        self.delimiter
     }
 
     /// Split `line` (one physical line, without its line end).
@@ -197,10 +224,10 @@ mod tests {
 
     #[test]
     fn detects_the_delimiter_from_the_header() {
-        assert_eq!(Delimiter::detect("a, b\tc"), Delimiter::Comma);
-        assert_eq!(Delimiter::detect("a\tb c"), Delimiter::Tab);
-        assert_eq!(Delimiter::detect("a  b"), Delimiter::Whitespace);
-        assert_eq!(Delimiter::detect("a b # x, y"), Delimiter::Whitespace);
+        assert_eq!(Delimiter::detect(b"a, b\tc"), Delimiter::Comma);
+        assert_eq!(Delimiter::detect(b"a\tb c"), Delimiter::Tab);
+        assert_eq!(Delimiter::detect(b"a  b"), Delimiter::Whitespace);
+        assert_eq!(Delimiter::detect(b"a b # x, y"), Delimiter::Whitespace);
     }
 
     #[test]

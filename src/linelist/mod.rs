@@ -20,7 +20,8 @@
 //! - **Comments**: a line whose first non-blank character is `#` is a comment, before
 //!   or after the header. In the whitespace format a `#` also ends the data of a row
 //!   (a trailing comment); in CSV and TSV a `#` inside a row is data. Blank lines,
-//!   a UTF-8 byte-order mark and CRLF line ends are accepted.
+//!   a UTF-8 byte-order mark and CRLF line ends are accepted. Comments need not be
+//!   UTF-8 (a Latin-1 `°` in a note does no harm); everything else must be.
 //! - **Header names** (matched ignoring case and surrounding spaces) say the quantity
 //!   and the unit:
 //!

@@ -51,9 +51,11 @@ pub fn read_line_list(
             Next::Line if is_blank_or_comment(&buf) => continue,
             Next::Line => {}
         }
-        let text =
-            std::str::from_utf8(&buf).map_err(|_| bad_line(line, LineProblem::InvalidUtf8))?;
-        let mut splitter = Splitter::new(Delimiter::detect(text));
+        let delimiter = Delimiter::detect(&buf);
+        let text = delimiter
+            .text_of(&buf)
+            .ok_or_else(|| bad_line(line, LineProblem::InvalidUtf8))?;
+        let mut splitter = Splitter::new(delimiter);
         let fields = splitter
             .split(text)
             .map_err(|problem| bad_line(line, problem))?;
@@ -80,9 +82,9 @@ pub fn read_line_list(
             }
             Next::Line => {
                 row += 1;
-                match std::str::from_utf8(&buf) {
-                    Err(_) => Err((None, LineProblem::InvalidUtf8)),
-                    Ok(text) => match splitter.split(text) {
+                match splitter.delimiter().text_of(&buf) {
+                    None => Err((None, LineProblem::InvalidUtf8)),
+                    Some(text) => match splitter.split(text) {
                         Err(problem) => Err((None, problem)),
                         Ok(fields) => convert_row(&fields, &layout, options, row, line),
                     },

@@ -147,6 +147,20 @@ fn a_comment_line_need_not_be_utf8() {
 }
 
 #[test]
+fn a_trailing_comment_in_whitespace_columns_need_not_be_utf8() {
+    let bytes = b"wavenumber_cm1 uncertainty_cm1 # \xB0\n15000 0.01 # 20\xB0C\n";
+    let list = read_line_list(&bytes[..], "lines.txt", &ReadOptions::default()).unwrap();
+    assert_eq!(list.lines.len(), 1);
+    // In CSV the same bytes are data, and must be text.
+    let bytes = b"wavenumber_cm1,uncertainty_cm1\n15000,0.01 # 20\xB0C\n";
+    let error = read_line_list(&bytes[..], "lines.csv", &ReadOptions::default()).unwrap_err();
+    assert_eq!(
+        error.to_string(),
+        "lines.csv:2: the line is not valid UTF-8 text"
+    );
+}
+
+#[test]
 fn header_names_ignore_case_and_spaces_and_keep_extras_as_written() {
     let list = read(" Wavelength_A , UNCERTAINTY_nm,Species , Intensity\n5000, 0.0001, He I, 7\n");
     assert_eq!(list.extra_columns, vec!["Species"]);
