@@ -33,7 +33,8 @@ fn csv_air_wavelengths(rows: usize) -> String {
     let mut text =
         String::from("# generated demo scan\nwavelength_nm,uncertainty_nm,intensity,note\n");
     for i in 0..rows {
-        let lambda = 200.0 + 800.0 * (i as f64 + rng.next_unit()) / rows as f64;
+        // Steps of 0.0004–0.0012 nm: strictly increasing at the 5 decimals printed.
+        let lambda = 200.0 + 800.0 * (i as f64 + 0.5 * rng.next_unit()) / rows as f64;
         let u = 0.0005 + 0.005 * rng.next_unit();
         let intensity = (rng.next_unit() * 10_000.0).round();
         let _ = writeln!(text, "{lambda:.5},{u:.4},{intensity},peak{i}");
