@@ -16,12 +16,17 @@ fn compiled() -> Predictions {
 }
 
 fn ritz(c: &mut Criterion) {
-    let neon = EMBEDDED_TABLES.iter().find(|t| t.species == "Ne I").unwrap();
+    let neon = EMBEDDED_TABLES
+        .iter()
+        .find(|t| t.species == "Ne I")
+        .unwrap();
     let table = neon.load().unwrap();
     c.bench_function("ritz/Ne I table (223 levels)", |b| {
         b.iter(|| predict_from_table(&table).unwrap())
     });
-    c.bench_function("ritz/all six compiled tables, read and predicted", |b| b.iter(compiled));
+    c.bench_function("ritz/all six compiled tables, read and predicted", |b| {
+        b.iter(compiled)
+    });
 }
 
 fn matching(c: &mut Criterion) {

@@ -54,12 +54,18 @@ fn the_readme_command_assigns_the_shipped_example() {
     assert!(stdout.contains("air wavelengths (nm)"), "{stdout}");
     assert!(stdout.contains("Birch & Downs"), "{stdout}");
     for species in ["H I", "He I", "Ne I", "Ar I", "Cd I", "Hg I"] {
-        assert!(stdout.contains(&format!("Predictions, {species}:")), "{species}");
+        assert!(
+            stdout.contains(&format!("Predictions, {species}:")),
+            "{species}"
+        );
     }
     assert!(stdout.contains("parity and J rules only"), "{stdout}");
     assert!(stdout.contains("unassigned"), "{stdout}");
     for line in stdout.lines() {
-        assert!(line.chars().count() <= 120, "wider than 120 columns: {line}");
+        assert!(
+            line.chars().count() <= 120,
+            "wider than 120 columns: {line}"
+        );
     }
 }
 
@@ -107,12 +113,7 @@ fn csv_output_is_written_whole_and_reads_back() {
 
 #[test]
 fn json_output_parses() {
-    let out = termsight(&[
-        "assign",
-        example().to_str().unwrap(),
-        "--format",
-        "json",
-    ]);
+    let out = termsight(&["assign", example().to_str().unwrap(), "--format", "json"]);
     assert!(out.status.success(), "{}", text(&out.stderr));
     let json: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     assert_eq!(json["lines"].as_array().unwrap().len(), 53);
@@ -132,7 +133,14 @@ fn reads_standard_input_and_a_level_table_of_ones_own() {
     )
     .unwrap();
     let mut child = Command::new(env!("CARGO_BIN_EXE_termsight"))
-        .args(["assign", "-", "--levels", levels.to_str().unwrap(), "--format", "csv"])
+        .args([
+            "assign",
+            "-",
+            "--levels",
+            levels.to_str().unwrap(),
+            "--format",
+            "csv",
+        ])
         .stdin(Stdio::piped())
         .stdout(Stdio::piped())
         .stderr(Stdio::piped())
@@ -163,7 +171,12 @@ fn bad_level_tables_name_file_line_and_column() {
          He I,1s.2p,1P*,1,lots,0.000001,x\n",
     )
     .unwrap();
-    let out = termsight(&["assign", example().to_str().unwrap(), "--levels", levels.to_str().unwrap()]);
+    let out = termsight(&[
+        "assign",
+        example().to_str().unwrap(),
+        "--levels",
+        levels.to_str().unwrap(),
+    ]);
     let stderr = text(&out.stderr);
     assert_eq!(out.status.code(), Some(2));
     assert!(
@@ -176,7 +189,11 @@ fn bad_level_tables_name_file_line_and_column() {
 fn bad_settings_name_the_flag() {
     let out = termsight(&["assign", example().to_str().unwrap(), "--within", "0"]);
     assert_eq!(out.status.code(), Some(2));
-    assert!(text(&out.stderr).contains("--within"), "{}", text(&out.stderr));
+    assert!(
+        text(&out.stderr).contains("--within"),
+        "{}",
+        text(&out.stderr)
+    );
     let out = termsight(&["assign", example().to_str().unwrap(), "--species", "Fe II"]);
     assert_eq!(out.status.code(), Some(2));
     assert!(text(&out.stderr).contains("no compiled table of Fe II"));
@@ -228,12 +245,18 @@ fn negative_and_zero_wavelengths() {
         b"wavelength_nm,uncertainty_nm\n-587.56,0.001\n",
         &[":2:", "wavelength_nm"],
     );
-    assert_clear_error(b"wavelength_nm,uncertainty_nm\n0,0.001\n", &[":2:", "wavelength_nm"]);
+    assert_clear_error(
+        b"wavelength_nm,uncertainty_nm\n0,0.001\n",
+        &[":2:", "wavelength_nm"],
+    );
 }
 
 #[test]
 fn nan_wavelength() {
-    assert_clear_error(b"wavelength_nm,uncertainty_nm\nNaN,0.001\n", &[":2:", "wavelength_nm"]);
+    assert_clear_error(
+        b"wavelength_nm,uncertainty_nm\nNaN,0.001\n",
+        &[":2:", "wavelength_nm"],
+    );
 }
 
 #[test]
@@ -273,7 +296,10 @@ fn a_failed_run_leaves_an_existing_output_untouched() {
         out_path.to_str().unwrap(),
     ]);
     assert_eq!(out.status.code(), Some(2));
-    assert_eq!(std::fs::read_to_string(&out_path).unwrap(), "earlier results\n");
+    assert_eq!(
+        std::fs::read_to_string(&out_path).unwrap(),
+        "earlier results\n"
+    );
 }
 
 #[test]

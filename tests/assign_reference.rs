@@ -117,6 +117,8 @@ fn helium_measured_list() -> LineList {
         extra_columns: vec![],
         air_formula: formula,
         skipped: vec![],
+        skipped_total: 0,
+        medium_assumed: false,
     }
 }
 
@@ -303,6 +305,8 @@ fn helium_1083_nm_triplet_and_59_nm_intercombination_line_are_flagged_as_they_sh
         extra_columns: vec![],
         air_formula: AirFormula::default(),
         skipped: vec![],
+        skipped_total: 0,
+        medium_assumed: false,
     };
     let result = assign_lines(&list.lines, &predictions, &MatchConfig::default());
     let rows = records(&list, &predictions, &result);

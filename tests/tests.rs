@@ -1,3 +1,7 @@
-//! Integration tests, one binary: each module is a topic.
+//! Integration tests, built as one binary: one module per topic, shared helpers in
+//! `util`.
 
+mod assign_cli;
 mod assign_reference;
+mod units;
+mod util;

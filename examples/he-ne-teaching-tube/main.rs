@@ -84,7 +84,12 @@ fn in_range(sigma_cm1: f64) -> bool {
 
 /// Principal quantum number of the last subshell of a level's configuration.
 fn outer_n(level: &Level) -> u32 {
-    level.label.configuration.subshells().last().map_or(0, |s| s.n)
+    level
+        .label
+        .configuration
+        .subshells()
+        .last()
+        .map_or(0, |s| s.n)
 }
 
 fn helium_lines() -> Vec<f64> {
@@ -101,7 +106,10 @@ fn helium_lines() -> Vec<f64> {
         }
         let multiplet = format!(
             "{} {} – {} {}",
-            lower.label.configuration, lower.label.term, upper.label.configuration, upper.label.term
+            lower.label.configuration,
+            lower.label.term,
+            upper.label.configuration,
+            upper.label.term
         );
         let j = (upper.label.j.twice, lower.label.j.twice);
         match best.iter_mut().find(|(m, _, _)| *m == multiplet) {
@@ -131,7 +139,9 @@ fn neon_lines() -> Vec<f64> {
         .iter()
         .filter(|line| {
             let (lower, upper) = p.levels_of(line).expect("levels");
-            outer(lower) == Some((3, 0)) && outer(upper) == Some((3, 1)) && in_range(line.wavenumber_cm1)
+            outer(lower) == Some((3, 0))
+                && outer(upper) == Some((3, 1))
+                && in_range(line.wavenumber_cm1)
         })
         .map(|line| line.wavenumber_cm1)
         .collect()
@@ -153,7 +163,10 @@ fn hydrogen_lines() -> Vec<f64> {
 }
 
 fn spurious_lines(rng: &mut SplitMix64) -> Vec<f64> {
-    let sets: Vec<Predictions> = EMBEDDED_TABLES.iter().map(|t| predictions(t.species)).collect();
+    let sets: Vec<Predictions> = EMBEDDED_TABLES
+        .iter()
+        .map(|t| predictions(t.species))
+        .collect();
     let (low, high) = (1e7 / RANGE_NM.1, 1e7 / RANGE_NM.0);
     let mut found = Vec::new();
     while found.len() < 4 {

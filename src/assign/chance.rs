@@ -16,10 +16,11 @@
 //!   the way the evidence does; the floor at u_c stops a deviation far below the
 //!   measurement's resolution from claiming a certainty it cannot have.
 //! - **ρ = n / L**: n is the number of predicted lines (of all the selected species)
-//!   with σ within ±W of σ_obs, not counting the candidate itself, W = F·k·u_c (F the
-//!   density window factor, default 300, k the tolerance in standard uncertainties),
-//!   so the window is several hundred times wider than the tolerance and the count
-//!   is local but not noisy. L is the window's length, 2W, cut at the first and
+//!   with σ within ±W of σ_obs, not counting the candidate itself. W = F·k·u_max,
+//!   with F the density window factor (default 300), k the tolerance in standard
+//!   uncertainties, and u_max the largest combined uncertainty among the observed
+//!   line's candidates: one window per observed line, at least F times wider than
+//!   every candidate's tolerance, so the count is local but not noisy. L is the window's length, 2W, cut at the first and
 //!   last predicted lines of the set (beyond them there is nothing to count, and
 //!   counting over empty space would understate ρ); L is never taken below W.
 //! - When no other line lies in the window, n is taken as 1: a window can show a

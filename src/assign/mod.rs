@@ -60,13 +60,13 @@ use std::fmt;
 
 use serde::{Deserialize, Serialize};
 
-use crate::levels::{PredictedLine, Predictions, TransitionFlags};
+use crate::levels::{PredictedLine, Predictions};
 use crate::linelist::ObservedLine;
 pub use record::{
     ASSIGN_COLUMNS, AssignmentFile, AssignmentReadError, AssignmentRecord, CandidateRecord,
     read_assignments, records,
 };
-use search::{CandidateIndex, Hit};
+use search::{CandidateIndex, Cursor, Hit};
 
 /// Settings of the matcher.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
@@ -231,13 +231,13 @@ pub struct Candidate {
     pub ranking_sigma: f64,
     /// Probability that a line this close is a chance coincidence (see [`chance`]).
     pub chance_probability: f64,
-    /// More than one candidate for this observed line.
-    pub blend: bool,
 }
 
 impl Candidate {
-    /// The flags of this candidate: those of its predicted line, then `blend`.
-    pub fn flags(&self, line: &PredictedLine) -> Vec<Flag> {
+    /// The flags of this candidate: those of its predicted `line`, then `blend` when
+    /// `blend` is true (the observed line has more than one candidate, see
+    /// [`LineAssignment::is_blend`]).
+    pub fn flags(&self, line: &PredictedLine, blend: bool) -> Vec<Flag> {
         let mut flags = Vec::new();
         if line.flags.intercombination {
             flags.push(Flag::Intercombination);
@@ -248,7 +248,7 @@ impl Candidate {
         if line.flags.jump_forbidden {
             flags.push(Flag::JumpForbidden);
         }
-        if self.blend {
+        if blend {
             flags.push(Flag::Blend);
         }
         flags
@@ -268,6 +268,11 @@ impl LineAssignment {
     /// True when no candidate lies within tolerance.
     pub fn is_unassigned(&self) -> bool {
         self.candidates.is_empty()
+    }
+
+    /// True when more than one candidate lies within tolerance (flag `blend`).
+    pub fn is_blend(&self) -> bool {
+        self.candidates.len() > 1
     }
 }
 
@@ -301,10 +306,12 @@ pub fn assign_lines_with_progress(
     progress: &mut dyn FnMut(MatchProgress),
 ) -> Vec<LineAssignment> {
     let index = CandidateIndex::new(predictions);
+    let mut cursor = index.cursor();
     let mut hits = Vec::new();
     let mut result = Vec::with_capacity(observed.len());
     for (i, line) in observed.iter().enumerate() {
         index.search(
+            &mut cursor,
             line.wavenumber_cm1,
             line.uncertainty_cm1,
             config.tolerance_sigma,
@@ -312,7 +319,7 @@ pub fn assign_lines_with_progress(
         );
         result.push(LineAssignment {
             observed: i,
-            candidates: rank(line.wavenumber_cm1, &hits, &index, predictions, config),
+            candidates: rank(line.wavenumber_cm1, &hits, &index, &mut cursor, config),
         });
         if (i + 1) % PROGRESS_EVERY == 0 {
             progress(MatchProgress {
@@ -328,32 +335,35 @@ pub fn assign_lines_with_progress(
     result
 }
 
-/// Candidates from the hits of one observed line, with chance probabilities and
-/// flags, ranked.
+/// Candidates from the hits of one observed line, with chance probabilities, ranked.
+///
+/// The density is counted once per observed line, within ±W of σ_obs with
+/// W = F·k·max(u_c) over the line's candidates, so the window is at least F times
+/// every candidate's tolerance (see [`chance`]).
 fn rank(
     sigma_obs: f64,
     hits: &[Hit],
     index: &CandidateIndex,
-    predictions: &Predictions,
+    cursor: &mut Cursor,
     config: &MatchConfig,
 ) -> Vec<Candidate> {
     let Some(span) = index.span() else {
         return Vec::new();
     };
-    let blend = hits.len() > 1;
+    let widest = hits
+        .iter()
+        .map(|h| h.combined_uncertainty_cm1)
+        .fold(0.0, f64::max);
+    let half_window = config.density_window_factor * config.tolerance_sigma * widest;
+    let in_window = index.count_between(cursor, sigma_obs - half_window, sigma_obs + half_window);
+    let length = chance::window_length(sigma_obs, half_window, span);
+    let penalty = config.rule_penalty_sigma;
     let mut candidates: Vec<Candidate> = hits
         .iter()
         .map(|hit| {
             let u_c = hit.combined_uncertainty_cm1;
-            let half_window = config.density_window_factor * config.tolerance_sigma * u_c;
-            let in_window = index.count_between(sigma_obs - half_window, sigma_obs + half_window);
-            let length = chance::window_length(sigma_obs, half_window, span);
             let deviation_sigma = deviation_in_sigma(hit.deviation_cm1, u_c);
-            let broken = predictions
-                .lines()
-                .get(hit.line)
-                .map_or(0, |l| broken_rules(&l.flags));
-            let penalty = config.rule_penalty_sigma;
+            let broken = hit.broken_rules;
             Candidate {
                 prediction: hit.line,
                 deviation_cm1: hit.deviation_cm1,
@@ -362,7 +372,8 @@ fn rank(
                 ranking_sigma: if broken == 0 {
                     deviation_sigma.abs()
                 } else {
-                    deviation_sigma.hypot(penalty * f64::from(broken).sqrt())
+                    (deviation_sigma * deviation_sigma + f64::from(broken) * penalty * penalty)
+                        .sqrt()
                 },
                 chance_probability: chance::chance_probability(
                     hit.deviation_cm1,
@@ -370,24 +381,18 @@ fn rank(
                     in_window.saturating_sub(1),
                     length,
                 ),
-                blend,
             }
         })
         .collect();
-    candidates.sort_by(|a, b| {
+    // Unstable sort: the prediction index makes every key distinct, so the order
+    // is fully determined.
+    candidates.sort_unstable_by(|a, b| {
         a.ranking_sigma
             .total_cmp(&b.ranking_sigma)
             .then(a.chance_probability.total_cmp(&b.chance_probability))
             .then(a.prediction.cmp(&b.prediction))
     });
     candidates
-}
-
-/// How many of the non-rigorous selection rules a line breaks.
-fn broken_rules(flags: &TransitionFlags) -> u32 {
-    u32::from(flags.intercombination)
-        + u32::from(flags.l_forbidden)
-        + u32::from(flags.jump_forbidden)
 }
 
 /// Δ/u_c; 0 for an exact match with no uncertainty (never NaN).

@@ -186,7 +186,7 @@ pub fn records(
             let model_u = predictions.model_uncertainty_cm1(line.species);
             out.push(AssignmentRecord {
                 rank: Some(rank + 1),
-                flags: candidate.flags(line),
+                flags: candidate.flags(line, assignment.is_blend()),
                 candidate: Some(CandidateRecord {
                     species: line.species,
                     lower: lower.label.clone(),

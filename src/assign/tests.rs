@@ -71,7 +71,8 @@ fn brute_force(
     observed
         .iter()
         .map(|o| {
-            let mut found = Vec::new();
+            // Every pair within tolerance: (index, deviation, u_c).
+            let mut within = Vec::new();
             for (i, line) in p.lines().iter().enumerate() {
                 let model = p.model_uncertainty_cm1(line.species);
                 let u_c =
@@ -79,20 +80,25 @@ fn brute_force(
                         .sqrt();
                 let d = o.wavenumber_cm1 - line.wavenumber_cm1;
                 if d.abs() <= k * u_c {
-                    let w_big = config.density_window_factor() * k * u_c;
-                    let n = sigmas
-                        .iter()
-                        .filter(|&&s| (s - o.wavenumber_cm1).abs() <= w_big)
-                        .count()
-                        - 1;
-                    let low = (o.wavenumber_cm1 - w_big).max(first);
-                    let high = (o.wavenumber_cm1 + w_big).min(last);
-                    let length = (high - low).max(w_big);
-                    let rho = n.max(1) as f64 / length;
-                    let p_chance = 1.0 - (-2.0 * rho * d.abs().max(u_c)).exp();
-                    found.push((i, p_chance));
+                    within.push((i, d, u_c));
                 }
             }
+            // One density window per observed line, from the widest u_c.
+            let u_max = within.iter().map(|w| w.2).fold(0.0, f64::max);
+            let w_big = config.density_window_factor() * k * u_max;
+            let n = sigmas
+                .iter()
+                .filter(|&&s| (s - o.wavenumber_cm1).abs() <= w_big)
+                .count()
+                .saturating_sub(1);
+            let low = (o.wavenumber_cm1 - w_big).max(first);
+            let high = (o.wavenumber_cm1 + w_big).min(last);
+            let length = (high - low).max(w_big);
+            let rho = n.max(1) as f64 / length;
+            let mut found: Vec<(usize, f64)> = within
+                .into_iter()
+                .map(|(i, d, u_c)| (i, 1.0 - (-2.0 * rho * d.abs().max(u_c)).exp()))
+                .collect();
             found.sort_by_key(|&(i, _)| i);
             found
         })
@@ -131,7 +137,7 @@ proptest! {
             let ranks: Vec<f64> = f.candidates.iter().map(|c| c.deviation_sigma.abs()).collect();
             prop_assert!(ranks.windows(2).all(|w| w[0] <= w[1]));
             // Blend exactly when more than one candidate.
-            prop_assert!(f.candidates.iter().all(|c| c.blend == (f.candidates.len() > 1)));
+            prop_assert_eq!(f.is_blend(), f.candidates.len() > 1);
         }
     }
 }
@@ -171,7 +177,7 @@ fn a_wide_line_does_not_hide_narrow_ones() {
         .map(|c| p.lines()[c.prediction].wavenumber_cm1)
         .collect();
     assert_eq!(indices, vec![1200.0, 1300.3]);
-    assert!(found[0].candidates[0].blend);
+    assert!(found[0].is_blend());
 }
 
 #[test]
@@ -234,7 +240,7 @@ fn rule_breaking_lines_rank_as_if_further_off() {
         1000.04
     );
     assert_eq!(
-        ranked[0].candidates[0].flags(&p.lines()[ranked[0].candidates[0].prediction]),
+        ranked[0].candidates[0].flags(&p.lines()[ranked[0].candidates[0].prediction], true),
         vec![Flag::Intercombination, Flag::Blend]
     );
 }

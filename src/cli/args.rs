@@ -16,15 +16,9 @@ pub struct Cli {
 /// The commands.
 #[derive(Debug, Subcommand)]
 pub enum Command {
-    /// Assign each line of a measured line list to candidate transitions, ranked.
-    Assign(AssignArgs),
-}
-
-/// Arguments of `termsight assign`.
-#[derive(Debug, clap::Args)]
-pub struct AssignArgs {
-    /// The measured line list (CSV, TSV or whitespace columns with a header).
-    pub lines: std::path::PathBuf,
+    /// Assign each line of a measured line list to candidate transitions, ranked,
+    /// with the probability that each match is chance.
+    Assign(super::assign::AssignArgs),
 }
 
 #[cfg(test)]

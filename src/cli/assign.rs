@@ -10,12 +10,13 @@ use super::CliError;
 use super::output::write_atomically;
 use crate::assign::{MatchConfig, MatchProgress, assign_lines_with_progress, records};
 use crate::levels::{
-    EMBEDDED_TABLES, LevelTable, Predictions, embedded_table, predict_from_table,
-    read_level_table,
+    EMBEDDED_TABLES, LevelTable, Predictions, embedded_table, predict_from_table, read_level_table,
 };
 use crate::linelist::{GlobalUncertainty, LineList, ReadOptions, read_line_list};
 use crate::notation::Species;
-use crate::report::{AssignReport, InputSummary, TableOptions, assign_csv, assign_json, assign_table};
+use crate::report::{
+    AssignReport, InputSummary, TableOptions, assign_csv, assign_json, assign_table,
+};
 use crate::units::{AirFormula, Medium};
 
 /// Assign each measured line to the transitions that could have made it, ranked,
@@ -165,7 +166,12 @@ pub fn run(args: AssignArgs) -> Result<(), CliError> {
     let total = list.lines.len();
     let mut progress = |p: MatchProgress| {
         if total > PROGRESS_ABOVE && p.done < p.total {
-            let _ = writeln!(io::stderr(), "termsight: matched {} of {} lines", p.done, p.total);
+            let _ = writeln!(
+                io::stderr(),
+                "termsight: matched {} of {} lines",
+                p.done,
+                p.total
+            );
         }
     };
     let result = assign_lines_with_progress(&list.lines, &predictions, &config, &mut progress);
@@ -203,7 +209,9 @@ pub fn run(args: AssignArgs) -> Result<(), CliError> {
 }
 
 fn match_config(args: &AssignArgs) -> Result<MatchConfig, CliError> {
-    let flag = |name: &str| move |e: crate::assign::MatchConfigError| CliError::Message(format!("--{name}: {e}"));
+    fn flag(name: &'static str) -> impl Fn(crate::assign::MatchConfigError) -> CliError {
+        move |e| CliError::Message(format!("--{name}: {e}"))
+    }
     MatchConfig::default()
         .with_tolerance_sigma(args.within)
         .map_err(flag("within"))?
@@ -246,7 +254,8 @@ fn predictions(level_files: &[PathBuf], species_names: &[String]) -> Result<Pred
     let sets = tables
         .iter()
         .map(|table| {
-            predict_from_table(table).map_err(|e| CliError::Message(format!("{}: {e}", table.source)))
+            predict_from_table(table)
+                .map_err(|e| CliError::Message(format!("{}: {e}", table.source)))
         })
         .collect::<Result<Vec<_>, _>>()?;
     Predictions::combine(sets).map_err(|e| {
@@ -316,7 +325,11 @@ fn read_lines(args: &AssignArgs) -> Result<LineList, CliError> {
 fn report_skipped(list: &LineList) {
     let mut stderr = io::stderr().lock();
     for skipped in &list.skipped {
-        let _ = writeln!(stderr, "termsight: skipped {}: {}", skipped.location, skipped.reason);
+        let _ = writeln!(
+            stderr,
+            "termsight: skipped {}: {}",
+            skipped.location, skipped.reason
+        );
     }
     if list.skipped_total > list.skipped.len() {
         let _ = writeln!(
@@ -350,7 +363,10 @@ mod tests {
         assert!(e.to_string().contains("no compiled table of Fe II"), "{e}");
         assert!(e.to_string().contains("He I, Ne I"), "{e}");
         let e = predictions(&[], &["Xx I".to_string()]).unwrap_err();
-        assert!(e.to_string().starts_with("--species: cannot read species"), "{e}");
+        assert!(
+            e.to_string().starts_with("--species: cannot read species"),
+            "{e}"
+        );
     }
 
     #[test]

@@ -6,6 +6,7 @@
 //! into place, so an interrupted run never leaves half a file.
 
 pub mod args;
+pub mod assign;
 pub mod output;
 
 use std::io::{self, Write};
@@ -34,9 +35,7 @@ pub fn main() -> ExitCode {
 /// Dispatch a parsed command line.
 pub fn run(cli: Cli) -> Result<(), CliError> {
     match cli.command {
-        Command::Assign(_) => Err(CliError::Message(
-            "the assign command is being built".into(),
-        )),
+        Command::Assign(args) => assign::run(args),
     }
 }
 

@@ -50,7 +50,7 @@ pub fn assign_table(report: &AssignReport<'_>, options: &TableOptions) -> String
         "Δσ\ncm⁻¹".to_string(),
         "Δσ/u".to_string(),
         "P\nchance".to_string(),
-        "alt.".to_string(),
+        "alt".to_string(),
         "flags".to_string(),
     ]);
     for (index, record) in report.records.iter().enumerate() {
@@ -71,6 +71,11 @@ pub fn assign_table(report: &AssignReport<'_>, options: &TableOptions) -> String
             options.all,
             unit.is_some(),
         ));
+    }
+    // One space before each cell and none after: the columns stay apart, and
+    // labels such as 2p5.(2P°<3/2>).3s keep to one line at 120 columns.
+    for column in table.column_iter_mut() {
+        column.set_padding((1, 0));
     }
     for (column, alignment) in [
         (0, CellAlignment::Right),

@@ -64,10 +64,10 @@ impl InputSummary {
         InputSummary {
             source: list.source.clone(),
             lines: list.lines.len(),
-            skipped_rows: list.skipped.len(),
+            skipped_rows: list.skipped_total,
             positions: kinds.join("; "),
             air_formula: any_air.then_some(list.air_formula),
-            medium_assumed: false,
+            medium_assumed: list.medium_assumed,
         }
     }
 

@@ -50,6 +50,8 @@ fn list() -> LineList {
         extra_columns: vec!["note".into()],
         air_formula: formula,
         skipped: vec![],
+        skipped_total: 0,
+        medium_assumed: false,
     }
 }
 
