@@ -7,9 +7,9 @@
 //!
 //! With the defaults (a million lines each over 10 000–50 000 cm⁻¹, observed
 //! uncertainties 0.01–0.1 cm⁻¹, predicted 0.001–0.05 cm⁻¹) the predictions are dense
-//! (25 per cm⁻¹) and an observed line has about 7 candidates; scale 0.1 gives about
-//! 1. The synthetic data are made with a seeded generator and do not depend on the
-//! run.
+//! (25 per cm⁻¹) and an observed line has about 7 candidates; with scale 0.1 it has
+//! about one. The synthetic data come from a seeded generator and are the same in
+//! every run.
 //!
 //! Peak memory is the process's peak resident set (VmHWM of /proc/self/status on
 //! Linux), reset between the stages through /proc/self/clear_refs; elsewhere it is
