@@ -1,6 +1,8 @@
 //! The terminal table of `termsight assign`.
 
-use comfy_table::{CellAlignment, ContentArrangement, LineStyle, Table, TableStyle};
+use comfy_table::{
+    CellAlignment, ColumnConstraint, ContentArrangement, LineStyle, Table, TableStyle,
+};
 
 use super::{AssignReport, significant};
 use crate::assign::AssignmentRecord;
@@ -74,8 +76,8 @@ pub fn assign_table(report: &AssignReport<'_>, options: &TableOptions) -> String
     }
     // One space before each cell and none after: the columns stay apart, and
     // labels such as 2p5.(2P°<3/2>).3s keep to one line at 120 columns.
-    for column in table.column_iter_mut() {
-        column.set_padding((1, 0));
+    for (index, column) in table.column_iter_mut().enumerate() {
+        column.set_padding((u16::from(index > 0), 0));
     }
     for (column, alignment) in [
         (0, CellAlignment::Right),
@@ -96,6 +98,13 @@ pub fn assign_table(report: &AssignReport<'_>, options: &TableOptions) -> String
         table
             .set_content_arrangement(ContentArrangement::Dynamic)
             .set_width(options.width);
+        // Level labels are short lines that read badly when split; other columns
+        // give way first.
+        for column in [4, 5] {
+            if let Some(c) = table.column_mut(column) {
+                c.set_constraint(ColumnConstraint::ContentWidth);
+            }
+        }
     }
     let mut text = String::new();
     for line in report.description() {
@@ -154,7 +163,7 @@ fn row(
         .iter()
         .map(|f| f.name())
         .collect::<Vec<_>>()
-        .join(" ");
+        .join("\n");
     let Some(c) = &record.candidate else {
         return vec![
             line,
@@ -185,12 +194,22 @@ fn row(
         c.species.to_string(),
         lower,
         upper,
-        format!("{:+}", Signed(significant(c.deviation_cm1, 2))),
+        deviation_text(c.deviation_cm1),
         format!("{:+.2}", c.deviation_sigma),
         significant(c.chance_probability, 2),
         alternatives,
         flags,
     ]
+}
+
+/// A deviation in cm⁻¹ with its sign, two significant digits and at most four
+/// decimals (the CSV and JSON outputs keep every digit).
+fn deviation_text(deviation_cm1: f64) -> String {
+    if deviation_cm1.abs() < 1e-3 {
+        format!("{deviation_cm1:+.4}")
+    } else {
+        format!("{}", Signed(significant(deviation_cm1, 2)))
+    }
 }
 
 /// A number printed with an explicit sign.
@@ -240,9 +259,33 @@ fn shortened(lower: &LevelLabel, upper: &LevelLabel) -> (String, String) {
         } else {
             label.configuration.clone()
         };
-        format!("{configuration}\n{} {}", label.term, label.j)
+        format!(
+            "{}\n{} {}",
+            break_at_dots(&configuration.to_string(), LABEL_WIDTH),
+            label.term,
+            label.j
+        )
     };
     (strip(lower), strip(upper))
+}
+
+/// Widest configuration printed on one line of the table; longer ones are broken
+/// after a `.` (17 keeps the pair-coupled Ne I and Ar I labels on one line).
+const LABEL_WIDTH: usize = 17;
+
+/// `text` broken into lines of at most `width` characters after `.` separators (a
+/// longer segment stays whole).
+fn break_at_dots(text: &str, width: usize) -> String {
+    let mut lines: Vec<String> = Vec::new();
+    let mut current = String::new();
+    for segment in text.split_inclusive('.') {
+        if !current.is_empty() && current.chars().count() + segment.chars().count() > width {
+            lines.push(std::mem::take(&mut current));
+        }
+        current.push_str(segment);
+    }
+    lines.push(current);
+    lines.join("\n")
 }
 
 /// `text` broken at spaces into lines of at most `width` characters (a longer word
@@ -273,6 +316,24 @@ fn wrap(text: &str, width: usize) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn deviations_keep_two_digits_and_four_decimals_at_most() {
+        assert_eq!(deviation_text(0.012345), "+0.012");
+        assert_eq!(deviation_text(-0.5), "-0.50");
+        assert_eq!(deviation_text(0.00036), "+0.0004");
+        assert_eq!(deviation_text(12.3), "+12");
+    }
+
+    #[test]
+    fn long_configurations_break_after_dots() {
+        assert_eq!(
+            break_at_dots("5d9.6s2.(2D<5/2>).6p", 17),
+            "5d9.6s2.\n(2D<5/2>).6p"
+        );
+        assert_eq!(break_at_dots("2p5.(2P°<3/2>).3s", 17), "2p5.(2P°<3/2>).3s");
+        assert_eq!(break_at_dots("1s.2p", 3), "1s.\n2p");
+    }
 
     #[test]
     fn wrap_breaks_at_spaces_and_indents() {
