@@ -321,3 +321,80 @@ fn a_missing_input_names_the_path() {
     assert_eq!(out.status.code(), Some(2));
     assert!(text(&out.stderr).contains("/nonexistent-directory/lines.csv"));
 }
+
+#[test]
+fn every_candidate_fits_120_columns() {
+    let out = termsight(&["assign", example().to_str().unwrap(), "--all"]);
+    assert!(out.status.success(), "{}", text(&out.stderr));
+    let stdout = text(&out.stdout);
+    for line in stdout.lines() {
+        assert!(
+            line.chars().count() <= 120,
+            "wider than 120 columns: {line}"
+        );
+    }
+    // More rows than without --all: the alternatives are listed with their rank.
+    assert!(stdout.contains("#2"), "{stdout}");
+}
+
+#[test]
+fn an_assumed_medium_is_said() {
+    // No medium column and no --medium: air is assumed above 200 nm (the usual
+    // convention), and the output says so.
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("lines.csv");
+    std::fs::write(&path, "wavelength_nm,uncertainty_nm\n587.5621,0.001\n").unwrap();
+    let out = termsight(&["assign", path.to_str().unwrap(), "--species", "He I"]);
+    assert!(out.status.success(), "{}", text(&out.stderr));
+    let stdout = text(&out.stdout);
+    assert!(stdout.contains("air was assumed"), "{stdout}");
+    let out = termsight(&[
+        "assign",
+        path.to_str().unwrap(),
+        "--species",
+        "He I",
+        "--medium",
+        "air",
+        "--air-formula",
+        "edlen",
+    ]);
+    let stdout = text(&out.stdout);
+    assert!(!stdout.contains("air was assumed"), "{stdout}");
+    assert!(stdout.contains("Edlen (1966"), "{stdout}");
+}
+
+#[test]
+fn skipped_rows_are_reported_and_the_rest_assigned() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("lines.csv");
+    std::fs::write(
+        &path,
+        "wavelength_nm,uncertainty_nm\n587.5621,0.001\nbad,0.001\n667.8152,0.001\n",
+    )
+    .unwrap();
+    let out = termsight(&[
+        "assign",
+        path.to_str().unwrap(),
+        "--species",
+        "He I",
+        "--skip-bad",
+        "--format",
+        "csv",
+    ]);
+    assert!(out.status.success(), "{}", text(&out.stderr));
+    let stderr = text(&out.stderr);
+    assert!(
+        stderr.contains(&format!("skipped {}:3", path.display())),
+        "{stderr}"
+    );
+    let back = read_assignments(out.stdout.as_slice(), "<stdout>").unwrap();
+    let lines: Vec<usize> = back
+        .records
+        .iter()
+        .filter(|r| r.rank == Some(1))
+        .map(|r| r.line)
+        .collect();
+    // Rows 1 and 3 of the input; row 2 was skipped.
+    assert_eq!(lines, vec![1, 3]);
+    assert!(text(&out.stdout).contains("1 bad row skipped"));
+}

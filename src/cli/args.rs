@@ -6,7 +6,7 @@ use clap::{Parser, Subcommand};
 /// Term analysis of atomic spectra: assign measured lines to transitions, optimise
 /// level energies, and fit Slater parameters of a level model.
 #[derive(Debug, Parser)]
-#[command(name = "termsight", version, about, long_about = None)]
+#[command(name = "termsight", version, about, long_about = None, max_term_width = 100)]
 pub struct Cli {
     /// The command to run.
     #[command(subcommand)]
@@ -18,6 +18,7 @@ pub struct Cli {
 pub enum Command {
     /// Assign each line of a measured line list to candidate transitions, ranked,
     /// with the probability that each match is chance.
+    #[command(long_about = super::assign::LONG_ABOUT)]
     Assign(super::assign::AssignArgs),
 }
 

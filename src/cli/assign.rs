@@ -100,6 +100,16 @@ pub struct AssignArgs {
     pub skip_bad: bool,
 }
 
+/// The long description of `termsight assign --help`.
+pub(crate) const LONG_ABOUT: &str = "Assign each measured line to the transitions that could \
+have made it, ranked, with the probability that each match is a chance coincidence.
+
+Predicted lines are the electric-dipole lines between the levels of the compiled reference \
+tables (NIST ASD 2014: H I, He I, Ne I, Ar I, Cd I, Hg I), or of your own level tables \
+(--levels). A prediction is a candidate when it lies within K combined standard \
+uncertainties of the observed line (--within). Every output says how the input was read \
+(medium, air formula) and which selection rules were applied.";
+
 const AFTER_HELP: &str = "\
 Examples:
   termsight assign lines.csv

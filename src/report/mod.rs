@@ -96,7 +96,12 @@ impl InputSummary {
             );
         }
         if self.skipped_rows > 0 {
-            text.push_str(&format!("; {} bad rows skipped", self.skipped_rows));
+            let rows = if self.skipped_rows == 1 {
+                "row"
+            } else {
+                "rows"
+            };
+            text.push_str(&format!("; {} bad {rows} skipped", self.skipped_rows));
         }
         text
     }
