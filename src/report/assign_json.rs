@@ -13,7 +13,7 @@ struct Document<'a> {
     matching: Matching,
     species: Vec<SpeciesJson<'a>>,
     counts: AssignCounts,
-    lines: Vec<LineJson<'a>>,
+    lines: Vec<LineJson>,
 }
 
 #[derive(Serialize)]
@@ -35,9 +35,11 @@ struct SpeciesJson<'a> {
 }
 
 #[derive(Serialize)]
-struct LineJson<'a> {
+struct LineJson {
     line: usize,
-    given: &'a GivenPosition,
+    given_value: f64,
+    given_unit: &'static str,
+    given_medium: Option<&'static str>,
     observed_wavenumber_cm1: f64,
     observed_uncertainty_cm1: f64,
     observed_intensity: Option<f64>,
@@ -83,9 +85,10 @@ fn level(label: &LevelLabel, energy_cm1: f64) -> LevelJson {
 
 /// The JSON of an assign run: `input`, `matching` (settings), `species` (origin and
 /// rules per species), `counts`, and `lines`, one object per observed line with its
-/// ranked `candidates` (empty when unassigned). Labels are printed as in the CSV.
+/// ranked `candidates` (empty when unassigned). Labels, units and flags are written as
+/// in the CSV.
 pub fn assign_json(report: &AssignReport<'_>) -> String {
-    let mut lines: Vec<LineJson<'_>> = Vec::new();
+    let mut lines: Vec<LineJson> = Vec::new();
     for record in report.records {
         if lines.last().is_none_or(|l| l.line != record.line) {
             lines.push(line(record, report.extra_columns));
@@ -140,10 +143,20 @@ pub fn assign_json(report: &AssignReport<'_>) -> String {
     text
 }
 
-fn line<'a>(record: &'a AssignmentRecord, extra_columns: &[String]) -> LineJson<'a> {
+fn line(record: &AssignmentRecord, extra_columns: &[String]) -> LineJson {
+    let (given_value, given_unit, given_medium) = match record.given {
+        GivenPosition::Wavelength {
+            value,
+            unit,
+            medium,
+        } => (value, unit.suffix(), Some(medium.name())),
+        GivenPosition::Wavenumber { value } => (value, "cm1", None),
+    };
     LineJson {
         line: record.line,
-        given: &record.given,
+        given_value,
+        given_unit,
+        given_medium,
         observed_wavenumber_cm1: record.observed_wavenumber_cm1,
         observed_uncertainty_cm1: record.observed_uncertainty_cm1,
         observed_intensity: record.observed_intensity,

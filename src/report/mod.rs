@@ -36,12 +36,32 @@ pub struct InputSummary {
     /// How the positions were given: `air wavelengths (nm)`, `vacuum wavenumbers
     /// (cm-1)`, … joined with `; ` when mixed.
     pub positions: String,
-    /// The air formula used, when any wavelength was in air.
+    /// The air formula used, when any wavelength was in air (in JSON: its command-line
+    /// name and its citation).
+    #[serde(serialize_with = "air_formula_json")]
     pub air_formula: Option<AirFormula>,
     /// True when the medium of some wavelength was assumed by the convention (air at
     /// and above 200 nm, vacuum below) because neither the file nor the command line
     /// gave it.
     pub medium_assumed: bool,
+}
+
+/// An air formula as `{"name": "birch-downs", "citation": "Birch & Downs (1994, …"}`.
+fn air_formula_json<S: serde::Serializer>(
+    formula: &Option<AirFormula>,
+    serializer: S,
+) -> Result<S::Ok, S::Error> {
+    #[derive(Serialize)]
+    struct Named {
+        name: &'static str,
+        citation: &'static str,
+    }
+    formula
+        .map(|f| Named {
+            name: f.name(),
+            citation: f.citation(),
+        })
+        .serialize(serializer)
 }
 
 impl InputSummary {

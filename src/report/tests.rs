@@ -166,7 +166,7 @@ fn json_groups_candidates_by_line() {
     assert_eq!(lines[0]["candidates"][0]["lower"]["term"], "3P°");
     assert_eq!(lines[0]["extra"]["note"], "a,b");
     assert_eq!(lines[2]["unassigned"], true);
-    assert_eq!(json["input"]["air_formula"], "birch-downs1994");
+    assert_eq!(json["input"]["air_formula"]["name"], "birch-downs");
     assert_eq!(json["counts"]["unassigned"], 1);
 }
 
