@@ -6,7 +6,7 @@ use termsight::assign::{MatchConfig, assign_lines, records};
 use termsight::levels::{
     EMBEDDED_TABLES, LevelLabel, Predictions, SelectionRules, predict_from_table, ritz_wavenumber,
 };
-use termsight::linelist::{GivenPosition, LineList, ObservedLine};
+use termsight::linelist::{GivenPosition, LineList, ObservedLine, ReadOptions, read_line_list};
 use termsight::notation::Species;
 use termsight::units::{AirFormula, LengthUnit, Medium, Wavelength};
 
@@ -336,4 +336,67 @@ fn helium_1083_nm_triplet_and_59_nm_intercombination_line_are_flagged_as_they_sh
         })
         .collect();
     assert_eq!(uv, vec!["1s2 1S 0 – 1s.2p 3P° 1 [Intercombination]"]);
+}
+
+#[test]
+fn observed_argon_lines_are_assigned_at_rank_one_to_the_published_pair_coupled_levels() {
+    // The Ar I export (tests/data/ArI-lines-asd2014.csv, NIST ASD 2014): every
+    // classified E1 row with an observed wavelength. Its levels are in pair coupling,
+    // so only the parity and J rules apply. Each distinct observed wavelength, read
+    // as a measured line list (air, Å, uncertainty from the printed digits but at
+    // least 0.01 Å), must be assigned at rank 1 to one of the classifications the
+    // export gives it, J values included.
+    let text = include_str!("data/ArI-lines-asd2014.csv");
+    let mut reader = csv::ReaderBuilder::new()
+        .comment(Some(b'#'))
+        .from_reader(text.as_bytes());
+    let mut published: Vec<(String, Vec<(LevelLabel, LevelLabel)>)> = Vec::new();
+    for row in reader.records() {
+        let row = row.unwrap();
+        let note = &row[10];
+        if !note.contains("wl=observed") || row[4].is_empty() || note_field(note, "type").is_some()
+        {
+            continue;
+        }
+        let pair = (
+            LevelLabel::from_fields(&row[4], &row[5], &row[6]).unwrap(),
+            LevelLabel::from_fields(&row[7], &row[8], &row[9]).unwrap(),
+        );
+        match published.iter_mut().find(|(w, _)| w == &row[0]) {
+            Some((_, pairs)) => pairs.push(pair),
+            None => published.push((row[0].to_string(), vec![pair])),
+        }
+    }
+    assert_eq!(published.len(), 132);
+    let mut list_text = String::from("wavelength_A,uncertainty_A,medium\n");
+    for (wavelength, _) in &published {
+        let u = printed_uncertainty_angstrom(wavelength);
+        list_text.push_str(&format!("{wavelength},{u},air\n"));
+    }
+    let list = read_line_list(list_text.as_bytes(), "argon.csv", &ReadOptions::default()).unwrap();
+    let table = EMBEDDED_TABLES
+        .iter()
+        .find(|t| t.species == "Ar I")
+        .unwrap();
+    let predictions = predict_from_table(&table.load().unwrap()).unwrap();
+    let result = assign_lines(&list.lines, &predictions, &MatchConfig::default());
+    let rows = records(&list, &predictions, &result);
+    for (line, (wavelength, pairs)) in published.iter().enumerate() {
+        let best = rows
+            .iter()
+            .find(|r| r.line == line + 1 && r.rank == Some(1))
+            .unwrap_or_else(|| panic!("{wavelength} Å unassigned"));
+        let c = best.candidate.as_ref().unwrap();
+        assert_eq!(c.selection_rules, SelectionRules::ParityAndJ);
+        assert!(
+            pairs
+                .iter()
+                .any(|(lo, up)| *lo == c.lower && *up == c.upper),
+            "{wavelength} Å: assigned {} – {}, the export gives {} – {}",
+            c.lower,
+            c.upper,
+            pairs[0].0,
+            pairs[0].1
+        );
+    }
 }
