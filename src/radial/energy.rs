@@ -1,0 +1,89 @@
+//! The configuration-average energy of a set of orbitals, split into kinetic,
+//! electron–nucleus and electron–electron parts (hartree).
+
+use super::average::{AverageEnergyExpression, SlaterKind};
+use super::grid::RadialGrid;
+use super::numerov::origin_ratio;
+use super::operator::NumerovKinetic;
+use super::slater::yk_function;
+
+/// The parts of a total energy, hartree.
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+pub struct EnergyParts {
+    /// Total energy E = T + V.
+    pub total_hartree: f64,
+    /// Kinetic energy T.
+    pub kinetic_hartree: f64,
+    /// Electron–nucleus energy.
+    pub nuclear_hartree: f64,
+    /// Electron–electron energy.
+    pub electron_electron_hartree: f64,
+}
+
+impl EnergyParts {
+    /// Potential energy V = electron–nucleus + electron–electron.
+    pub fn potential_hartree(&self) -> f64 {
+        self.nuclear_hartree + self.electron_electron_hartree
+    }
+
+    /// The virial ratio −V/T, which is exactly 2 for Hartree–Fock solutions of a
+    /// Coulomb problem (virial theorem; Froese Fischer 1977, §2.8).
+    pub fn virial_ratio(&self) -> f64 {
+        -self.potential_hartree() / self.kinetic_hartree
+    }
+}
+
+/// ⟨P| −½ d²/dr² + l(l+1)/(2r²) |P⟩ hartree, with the same Numerov operator as the
+/// solver: with P = √r y and x = ln r it is ½∫[−y''y + (l+½)² y²] dx.
+pub fn kinetic_energy(grid: &RadialGrid, l: u32, z_origin: f64, p: &[f64]) -> f64 {
+    let r = grid.r();
+    let n = grid.len();
+    let kinetic = NumerovKinetic::new(grid.step(), n - 2, origin_ratio(grid, l, z_origin));
+    let u: Vec<f64> = (1..n - 1).map(|i| p[i] / r[i].sqrt()).collect();
+    let mut ku = vec![0.0; u.len()];
+    kinetic.apply(&u, &mut ku);
+    let lh2 = (l as f64 + 0.5).powi(2);
+    0.5 * grid.step() * u.iter().zip(&ku).map(|(u, k)| u * k + lh2 * u * u).sum::<f64>()
+}
+
+/// E_av of orbitals `p` (one per subshell of `expression`, on `grid`) in the field
+/// of a point nucleus of charge `z`.
+pub fn average_energy(
+    grid: &RadialGrid,
+    z: f64,
+    expression: &AverageEnergyExpression,
+    p: &[&[f64]],
+) -> EnergyParts {
+    let mut kinetic = 0.0;
+    let mut nuclear = 0.0;
+    for (shell, p) in expression.subshells.iter().zip(p) {
+        let q = shell.occupancy as f64;
+        kinetic += q * kinetic_energy(grid, shell.l, z, p);
+        nuclear -= q * z * grid.integrate_product_power(p, p, -1);
+    }
+    let electron_electron = expression
+        .terms
+        .iter()
+        .map(|term| {
+            let (pa, pb) = (p[term.a], p[term.b]);
+            let integral = match term.kind {
+                SlaterKind::Direct => {
+                    let y = yk_function(grid, term.k, pb, pb);
+                    grid.step() * pa.iter().zip(&y).map(|(a, y)| a * a * y).sum::<f64>()
+                }
+                SlaterKind::Exchange => {
+                    let y = yk_function(grid, term.k, pa, pb);
+                    grid.step()
+                        * pa.iter().zip(pb).zip(&y).map(|((a, b), y)| a * b * y).sum::<f64>()
+                }
+            };
+            term.coefficient * integral
+        })
+        .sum::<f64>();
+    EnergyParts {
+        total_hartree: kinetic + nuclear + electron_electron,
+        kinetic_hartree: kinetic,
+        nuclear_hartree: nuclear,
+        electron_electron_hartree: electron_electron,
+    }
+}
