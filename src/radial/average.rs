@@ -158,8 +158,8 @@ mod tests {
             if f[column("block_row")] != f[column("block_col")] {
                 continue; // off-diagonal element of the d3 2D block: no part of the trace
             }
-            let l: f64 = f[column("L")].parse().unwrap();
-            let s: f64 = f[column("S")].parse().unwrap();
+            let l = rational(f[column("L")]);
+            let s = rational(f[column("S")]);
             let weight = (2.0 * s + 1.0) * (2.0 * l + 1.0);
             let entry = sums
                 .entry(f[column("config")].to_string())
@@ -169,7 +169,12 @@ mod tests {
                 entry.1[i] += weight * rational(f[column(name)]);
             }
         }
-        let letter = |c: char| crate::notation::ORBITAL_LETTERS.iter().position(|&b| b as char == c).unwrap() as u32;
+        let letter = |c: char| {
+            crate::notation::ORBITAL_LETTERS
+                .iter()
+                .position(|&b| b as char == c)
+                .unwrap() as u32
+        };
         let mut checked = 0;
         for (config, (weight, sums)) in sums {
             let mean: Vec<f64> = sums.iter().map(|s| s / weight).collect();
@@ -177,13 +182,25 @@ mod tests {
                 let la = letter(a.chars().next().unwrap());
                 let lb = letter(b.chars().next().unwrap());
                 vec![
-                    Subshell { n: 10, l: la, occupancy: 1 },
-                    Subshell { n: 11, l: lb, occupancy: 1 },
+                    Subshell {
+                        n: 10,
+                        l: la,
+                        occupancy: 1,
+                    },
+                    Subshell {
+                        n: 11,
+                        l: lb,
+                        occupancy: 1,
+                    },
                 ]
             } else {
                 let l = letter(config.chars().next().unwrap());
                 let q: u32 = config[1..].parse().unwrap();
-                vec![Subshell { n: 10, l, occupancy: q }]
+                vec![Subshell {
+                    n: 10,
+                    l,
+                    occupancy: q,
+                }]
             };
             let expression = AverageEnergyExpression::new(&shells);
             let mut ours = vec![0.0; integrals.len()];
@@ -211,11 +228,21 @@ mod tests {
     #[test]
     fn helium_ground_configuration_is_one_coulomb_integral() {
         // 1s²: E = 2 I(1s) + F⁰(1s,1s) (any textbook on two-electron atoms).
-        let shells = [Subshell { n: 1, l: 0, occupancy: 2 }];
+        let shells = [Subshell {
+            n: 1,
+            l: 0,
+            occupancy: 2,
+        }];
         let e = AverageEnergyExpression::new(&shells);
         assert_eq!(
             e.terms,
-            vec![SlaterTerm { kind: SlaterKind::Direct, k: 0, a: 0, b: 0, coefficient: 1.0 }]
+            vec![SlaterTerm {
+                kind: SlaterKind::Direct,
+                k: 0,
+                a: 0,
+                b: 0,
+                coefficient: 1.0
+            }]
         );
     }
 }

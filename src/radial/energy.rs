@@ -43,7 +43,11 @@ pub fn kinetic_energy(grid: &RadialGrid, l: u32, z_origin: f64, p: &[f64]) -> f6
     let mut ku = vec![0.0; u.len()];
     kinetic.apply(&u, &mut ku);
     let lh2 = (l as f64 + 0.5).powi(2);
-    0.5 * grid.step() * u.iter().zip(&ku).map(|(u, k)| u * k + lh2 * u * u).sum::<f64>()
+    0.5 * grid.step()
+        * u.iter()
+            .zip(&ku)
+            .map(|(u, k)| u * k + lh2 * u * u)
+            .sum::<f64>()
 }
 
 /// E_av of orbitals `p` (one per subshell of `expression`, on `grid`) in the field
@@ -74,7 +78,11 @@ pub fn average_energy(
                 SlaterKind::Exchange => {
                     let y = yk_function(grid, term.k, pa, pb);
                     grid.step()
-                        * pa.iter().zip(pb).zip(&y).map(|((a, b), y)| a * b * y).sum::<f64>()
+                        * pa.iter()
+                            .zip(pb)
+                            .zip(&y)
+                            .map(|((a, b), y)| a * b * y)
+                            .sum::<f64>()
                 }
             };
             term.coefficient * integral

@@ -65,7 +65,9 @@ impl RadialGrid {
         }
         let x_end = (nuclear_charge * spec.r_max_bohr).ln();
         if !x_end.is_finite() || x_end < spec.x_start + 16.0 * spec.step {
-            return Err(bad("the largest radius must lie well beyond the first point"));
+            return Err(bad(
+                "the largest radius must lie well beyond the first point",
+            ));
         }
         let intervals = ((x_end - spec.x_start) / spec.step).ceil() as usize;
         if intervals > 2_000_000 {
@@ -174,11 +176,11 @@ mod tests {
     fn cumulative_weights_are_exact_for_quintics() {
         // A degree-5 polynomial is reproduced exactly by its six-point interpolant
         // (Lagrange interpolation, any numerical-analysis textbook).
-        let poly = |x: f64| 0.3 - 1.2 * x + 0.7 * x * x - 0.05 * x.powi(3) + 0.01 * x.powi(4)
-            - 0.002 * x.powi(5);
+        let poly = |x: f64| {
+            0.3 - 1.2 * x + 0.7 * x * x - 0.05 * x.powi(3) + 0.01 * x.powi(4) - 0.002 * x.powi(5)
+        };
         let antiderivative = |x: f64| {
-            0.3 * x - 0.6 * x * x + 0.7 / 3.0 * x.powi(3) - 0.0125 * x.powi(4)
-                + 0.002 * x.powi(5)
+            0.3 * x - 0.6 * x * x + 0.7 / 3.0 * x.powi(3) - 0.0125 * x.powi(4) + 0.002 * x.powi(5)
                 - 0.002 / 6.0 * x.powi(6)
         };
         for (p, row) in CUMULATIVE_WEIGHTS_1440.iter().enumerate() {
@@ -188,7 +190,10 @@ mod tests {
                 .map(|(j, w)| w / 1440.0 * poly(j as f64))
                 .sum();
             let exact = antiderivative(p as f64 + 1.0) - antiderivative(p as f64);
-            assert!((approx - exact).abs() < 1e-13, "row {p}: {approx} vs {exact}");
+            assert!(
+                (approx - exact).abs() < 1e-13,
+                "row {p}: {approx} vs {exact}"
+            );
             assert!((row.iter().sum::<f64>() - 1440.0).abs() < 1e-12);
         }
     }
@@ -207,7 +212,11 @@ mod tests {
     fn trapezoid_in_x_integrates_a_hydrogen_density_to_one() {
         // ∫ 4 r² e^(−2r) dr = 1 (hydrogen 1s, any quantum-mechanics textbook).
         let grid = RadialGrid::new(1.0, GridSpec::default()).unwrap();
-        let f: Vec<f64> = grid.r().iter().map(|r| 4.0 * r * r * (-2.0 * r).exp()).collect();
+        let f: Vec<f64> = grid
+            .r()
+            .iter()
+            .map(|r| 4.0 * r * r * (-2.0 * r).exp())
+            .collect();
         assert!((grid.integrate(&f) - 1.0).abs() < 1e-13);
     }
 

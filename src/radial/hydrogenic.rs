@@ -116,8 +116,7 @@ pub fn slater_effective_charges(nuclear_charge: u32, subshells: &[Subshell]) -> 
             let mut screening = 0.0;
             for other in subshells {
                 let other_group = group(other);
-                let count = other.occupancy as f64
-                    - if other == shell { 1.0 } else { 0.0 };
+                let count = other.occupancy as f64 - if other == shell { 1.0 } else { 0.0 };
                 let per_electron = if other_group == own {
                     if shell.n == 1 { 0.30 } else { 0.35 }
                 } else if other_group > own {

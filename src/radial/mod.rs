@@ -7,6 +7,7 @@ pub mod energy;
 pub mod grid;
 pub mod hartree_fock;
 pub mod hydrogenic;
+pub mod integrals;
 pub mod local_exchange;
 pub mod numerov;
 mod operator;
@@ -15,8 +16,12 @@ pub mod slater;
 mod three_j;
 
 pub use hartree_fock::hartree_fock;
+pub use integrals::{IntegralKind, RadialIntegral, ScaleFactors, radial_integrals};
 pub use local_exchange::local_exchange;
-pub use scf::{Method, Orbital, ScfObserver, ScfOptions, ScfProgress, ScfSolution, ScfStage, Silent, screened_hydrogenic};
+pub use scf::{
+    Method, Orbital, ScfObserver, ScfOptions, ScfProgress, ScfSolution, ScfStage, Silent,
+    screened_hydrogenic,
+};
 
 /// Errors of the radial solver.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -63,7 +68,9 @@ pub enum RadialError {
         problem: String,
     },
     /// The self-consistent field did not converge.
-    #[error("the self-consistent field did not converge in {iterations} iterations (residual {residual:.2e})")]
+    #[error(
+        "the self-consistent field did not converge in {iterations} iterations (residual {residual:.2e})"
+    )]
     NotConverged {
         /// Iterations done.
         iterations: u32,

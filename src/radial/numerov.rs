@@ -108,11 +108,23 @@ pub fn solve_bound_state(
         .map(|i| potential[i] + centrifugal(i))
         .fold(f64::INFINITY, f64::min);
     let mut e_hi = (potential[size - 1] + centrifugal(size - 1)).max(0.0);
+    if !(e_lo < e_hi) {
+        return Err(RadialError::NoBoundState {
+            n,
+            l,
+            problem: "the potential has no well below its value at the grid's end".into(),
+        });
+    }
     let mut energy = match energy_guess {
         Some(e) if e > e_lo && e < e_hi => e,
         _ => {
             let z = z_origin.max(1.0);
-            (-(z * z) / (2.0 * (n * n) as f64)).clamp(e_lo + 1e-9, e_hi - 1e-9)
+            let guess = -(z * z) / (2.0 * (n * n) as f64);
+            if guess > e_lo && guess < e_hi {
+                guess
+            } else {
+                0.5 * (e_lo + e_hi)
+            }
         }
     };
 
@@ -171,7 +183,8 @@ pub fn solve_bound_state(
         inward[last - 1] = 1e-30;
         for j in (1..last).rev() {
             let i = m + j;
-            inward[j - 1] = ((12.0 - 10.0 * f[i]) * inward[j] - f[i + 1] * inward[j + 1]) / f[i - 1];
+            inward[j - 1] =
+                ((12.0 - 10.0 * f[i]) * inward[j] - f[i + 1] * inward[j + 1]) / f[i - 1];
         }
         if inward[0] == 0.0 || !inward[0].is_finite() {
             return Err(RadialError::NoBoundState {
@@ -205,7 +218,8 @@ pub fn solve_bound_state(
             }
             continue;
         }
-        let mismatch = f[m + 1] * y[m + 1] - (12.0 - 10.0 * f[m]) * y_out_m + f[m - 1] * y_out_before;
+        let mismatch =
+            f[m + 1] * y[m + 1] - (12.0 - 10.0 * f[m]) * y_out_m + f[m - 1] * y_out_before;
         let weight: f64 = (0..=end).map(|i| 2.0 * r[i] * r[i] * y[i] * y[i]).sum();
         let correction = -mismatch * y_out_m / (h2 * weight);
         if correction > 0.0 {
@@ -287,21 +301,86 @@ pub fn tail_fraction(grid: &RadialGrid, p: &[f64]) -> f64 {
 mod tests {
     use super::*;
     use crate::radial::grid::GridSpec;
+    use crate::radial::hydrogenic::{hydrogenic_energy_hartree, hydrogenic_mean_radius_bohr};
+    use crate::radial::operator::NumerovKinetic;
+
+    fn coulomb(z: f64) -> (RadialGrid, Vec<f64>) {
+        let spec = GridSpec {
+            r_max_bohr: 400.0 / z,
+            ..GridSpec::default()
+        };
+        let grid = RadialGrid::new(z, spec).unwrap();
+        let v = grid.r().iter().map(|r| -z / r).collect();
+        (grid, v)
+    }
 
     #[test]
-    fn scratch_hydrogen() {
-        for step in [1.0/32.0, 1.0/64.0, 1.0/128.0] {
-        let spec = GridSpec { r_max_bohr: 400.0, step, ..GridSpec::default() };
-        let grid = RadialGrid::new(1.0, spec).unwrap();
-        let v: Vec<f64> = grid.r().iter().map(|r| -1.0 / r).collect();
-        for n in 1..=5 {
-            for l in 0..n {
-                let s = solve_bound_state(&grid, &v, n, l, None, ShootingOptions::default()).unwrap();
-                let exact = -0.5 / (n * n) as f64;
-                let mr = grid.integrate_product_power(&s.p, &s.p, 1);
-                println!("h={step} n={n} l={l} E={} err={:.2e} it={} <r>err={:.2e} tail={:.1e}", s.energy_hartree, s.energy_hartree - exact, s.iterations, mr - (3*n*n - l*(l+1)) as f64/2.0, s.tail);
+    fn hydrogen_levels_and_mean_radii() {
+        // E = −Z²/(2n²) to 1e-9 hartree (Bohr; the check the project asks for) and
+        // ⟨r⟩ = [3n² − l(l+1)]/(2Z) (Bethe & Salpeter 1957, eq. 3.25) for n ≤ 5.
+        for z in [1.0, 3.0] {
+            let (grid, v) = coulomb(z);
+            for n in 1..=5 {
+                for l in 0..n {
+                    let state =
+                        solve_bound_state(&grid, &v, n, l, None, ShootingOptions::default())
+                            .unwrap();
+                    let exact = hydrogenic_energy_hartree(n, z);
+                    let error = state.energy_hartree - exact;
+                    assert!(error.abs() < 1e-9 * z * z, "Z={z} n={n} l={l}: {error:e}");
+                    let mean_r = grid.integrate_product_power(&state.p, &state.p, 1);
+                    let expected = hydrogenic_mean_radius_bohr(n, l, z);
+                    assert!(
+                        (mean_r / expected - 1.0).abs() < 1e-6,
+                        "n={n} l={l}: {mean_r}"
+                    );
+                    let norm = grid.integrate_product(&state.p, &state.p);
+                    assert!((norm - 1.0).abs() < 1e-12);
+                    assert_eq!(count_nodes(&state.p), n - l - 1);
+                    assert!(state.tail < 1e-6);
+                }
             }
         }
+    }
+
+    #[test]
+    fn energy_is_the_converged_eigenvalue_of_the_discrete_equations() {
+        // The shooting solution satisfies Numerov's equations everywhere, so its
+        // energy equals the Rayleigh quotient of the symmetric Numerov operator
+        // (see `operator`) to within the 1e-10 hartree the solver promises.
+        let (grid, v) = coulomb(2.0);
+        let r = grid.r();
+        let size = grid.len() - 2;
+        for (n, l) in [(1, 0), (3, 1), (4, 3)] {
+            let state =
+                solve_bound_state(&grid, &v, n, l, None, ShootingOptions::default()).unwrap();
+            let kinetic = NumerovKinetic::new(grid.step(), size, origin_ratio(&grid, l, 2.0));
+            let u: Vec<f64> = (1..=size).map(|i| state.p[i] / r[i].sqrt()).collect();
+            let mut ku = vec![0.0; size];
+            kinetic.apply(&u, &mut ku);
+            let lh2 = (l as f64 + 0.5).powi(2);
+            let (mut numerator, mut denominator) = (0.0, 0.0);
+            for j in 0..size {
+                let i = j + 1;
+                numerator += u[j] * (ku[j] + (lh2 + 2.0 * r[i] * r[i] * v[i]) * u[j]);
+                denominator += 2.0 * r[i] * r[i] * u[j] * u[j];
+            }
+            let quotient = numerator / denominator;
+            assert!(
+                (quotient - state.energy_hartree).abs() < 1e-10,
+                "n={n} l={l}"
+            );
         }
+    }
+
+    #[test]
+    fn impossible_requests_are_errors() {
+        let (grid, v) = coulomb(1.0);
+        let options = ShootingOptions::default();
+        assert!(solve_bound_state(&grid, &v, 2, 2, None, options).is_err());
+        assert!(solve_bound_state(&grid, &v[..10], 1, 0, None, options).is_err());
+        // A repulsive potential binds nothing.
+        let repulsive: Vec<f64> = grid.r().iter().map(|r| 1.0 / r).collect();
+        assert!(solve_bound_state(&grid, &repulsive, 1, 0, None, options).is_err());
     }
 }

@@ -315,7 +315,9 @@ pub(crate) fn orthogonalise_by_n(grid: &RadialGrid, orbitals: &mut [Orbital]) {
                 *v -= overlap * w;
             }
         }
-        let norm = grid.integrate_product(&orbitals[i].p, &orbitals[i].p).sqrt();
+        let norm = grid
+            .integrate_product(&orbitals[i].p, &orbitals[i].p)
+            .sqrt();
         orbitals[i].p.iter_mut().for_each(|v| *v /= norm);
     }
 }

@@ -54,14 +54,15 @@ pub fn zk_function(grid: &RadialGrid, k: u32, pa: &[f64], pb: &[f64]) -> Vec<f64
 }
 
 /// R^k(ab, cd) = ∫ P_a P_c Y^k(bd)/r dr, hartree.
-pub fn rk_integral(
-    grid: &RadialGrid,
-    k: u32,
-    [pa, pb, pc, pd]: [&[f64]; 4],
-) -> f64 {
+pub fn rk_integral(grid: &RadialGrid, k: u32, [pa, pb, pc, pd]: [&[f64]; 4]) -> f64 {
     let y = yk_function(grid, k, pb, pd);
     // ∫ P_a P_c Y/r dr = h Σ r (P_a P_c Y / r) = h Σ P_a P_c Y.
-    grid.step() * pa.iter().zip(pc).zip(&y).map(|((a, c), y)| a * c * y).sum::<f64>()
+    grid.step()
+        * pa.iter()
+            .zip(pc)
+            .zip(&y)
+            .map(|((a, c), y)| a * c * y)
+            .sum::<f64>()
 }
 
 /// F^k(a, b) = R^k(ab, ab), hartree.
@@ -145,4 +146,91 @@ pub(crate) fn running_integral(f: &[f64], h: f64, m: f64, direction: Direction) 
         }
     }
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::radial::grid::GridSpec;
+    use crate::radial::hydrogenic::hydrogenic_orbital;
+
+    fn orbital(grid: &RadialGrid, label: &str, z: f64) -> Vec<f64> {
+        let n = label[..1].parse().unwrap();
+        let l = crate::notation::ORBITAL_LETTERS
+            .iter()
+            .position(|&c| c as char == label.chars().nth(1).unwrap())
+            .unwrap() as u32;
+        hydrogenic_orbital(grid, n, l, z).unwrap()
+    }
+
+    #[test]
+    fn hydrogenic_slater_integrals_match_sympy() {
+        // tests/data/hydrogenic_slater.csv (exact sympy integrals, copied from
+        // ../shared/check-values): value = coefficient × Z hartree. It includes the
+        // textbook F⁰(1s,1s) = 5Z/8, J(1s2s) = 17Z/81, K(1s2s) = 16Z/729,
+        // J(1s2p) = 59Z/243 and K(1s2p) = G¹/3 = 112Z/6561.
+        let text = include_str!("../../tests/data/hydrogenic_slater.csv");
+        let mut checked = 0;
+        for z in [1.0, 2.0, 26.0] {
+            let spec = GridSpec {
+                r_max_bohr: 200.0 / z,
+                ..GridSpec::default()
+            };
+            let grid = RadialGrid::new(z, spec).unwrap();
+            for line in text.lines().skip(2) {
+                let f: Vec<&str> = line.split(',').collect();
+                let k: u32 = f[1].parse().unwrap();
+                let (pa, pb) = (orbital(&grid, f[2], z), orbital(&grid, f[3], z));
+                let expected = z * f[5].parse::<f64>().unwrap();
+                let got = match &f[0][..1] {
+                    "F" => fk_integral(&grid, k, &pa, &pb),
+                    _ => gk_integral(&grid, k, &pa, &pb),
+                };
+                // The running integrals err by O(h⁶): about 1e-12 on the default grid.
+                assert!(
+                    (got / expected - 1.0).abs() < 1e-10,
+                    "{} k={k} {} {} Z={z}: {got} vs {expected}",
+                    f[0],
+                    f[2],
+                    f[3]
+                );
+                checked += 1;
+            }
+        }
+        assert_eq!(checked, 48);
+    }
+
+    #[test]
+    fn potential_of_a_hydrogen_1s_cloud() {
+        // Y⁰(1s1s; r) = r V(r) = 1 − (1 + r) e^(−2r) for hydrogen 1s (Z = 1), the
+        // electrostatic potential of the charge cloud (Bethe & Salpeter 1957, §32).
+        let grid = RadialGrid::new(1.0, GridSpec::default()).unwrap();
+        let p = orbital(&grid, "1s", 1.0);
+        let y = yk_function(&grid, 0, &p, &p);
+        for (r, y) in grid.r().iter().zip(&y) {
+            let exact = 1.0 - (1.0 + r) * (-2.0 * r).exp();
+            assert!((y - exact).abs() < 1e-11, "r = {r}: {y} vs {exact}");
+        }
+    }
+
+    #[test]
+    fn rk_has_the_symmetries_of_the_coulomb_integral() {
+        // R^k(ab,cd) = R^k(ba,dc) = R^k(cb,ad) = R^k(ad,cb) (exchange of the two
+        // electrons; of the bra and ket of one electron): Slater 1960, vol. I, §13-3.
+        let grid = RadialGrid::new(3.0, GridSpec::default()).unwrap();
+        let a = orbital(&grid, "2s", 2.3);
+        let b = orbital(&grid, "3p", 1.7);
+        let c = orbital(&grid, "3s", 2.9);
+        let d = orbital(&grid, "4d", 1.1);
+        for k in 0..4 {
+            let reference = rk_integral(&grid, k, [&a, &b, &c, &d]);
+            for other in [
+                rk_integral(&grid, k, [&b, &a, &d, &c]),
+                rk_integral(&grid, k, [&c, &b, &a, &d]),
+                rk_integral(&grid, k, [&a, &d, &c, &b]),
+            ] {
+                assert!((other - reference).abs() < 1e-11 * reference.abs().max(1e-3));
+            }
+        }
+    }
 }

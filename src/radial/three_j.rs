@@ -18,8 +18,8 @@ pub(crate) fn three_j_zero_squared(l1: u32, l2: u32, l3: u32) -> f64 {
     }
     let g = j / 2;
     let factorial = |n: u32| (1..=n).map(f64::from).product::<f64>();
-    let radicand = factorial(j - 2 * l1) * factorial(j - 2 * l2) * factorial(j - 2 * l3)
-        / factorial(j + 1);
+    let radicand =
+        factorial(j - 2 * l1) * factorial(j - 2 * l2) * factorial(j - 2 * l3) / factorial(j + 1);
     let ratio = factorial(g) / (factorial(g - l1) * factorial(g - l2) * factorial(g - l3));
     radicand * ratio * ratio
 }
