@@ -18,6 +18,9 @@ pub struct Cli {
 pub enum Command {
     /// Assign each line of a measured line list to candidate transitions, ranked.
     Assign(AssignArgs),
+    /// Orbitals and radial integrals (E_av, F^k, G^k, R^k, ζ, ⟨r⟩) of configurations,
+    /// from a self-consistent field.
+    Radial(super::radial::RadialArgs),
 }
 
 /// Arguments of `termsight assign`.

@@ -7,6 +7,7 @@
 
 pub mod args;
 pub mod output;
+pub mod radial;
 
 use std::io::{self, Write};
 use std::process::ExitCode;
@@ -37,6 +38,7 @@ pub fn run(cli: Cli) -> Result<(), CliError> {
         Command::Assign(_) => Err(CliError::Message(
             "the assign command is being built".into(),
         )),
+        Command::Radial(args) => radial::run(args),
     }
 }
 

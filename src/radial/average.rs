@@ -139,12 +139,12 @@ mod tests {
         }
     }
 
-    /// The degeneracy-weighted mean of the term energies of tests/data/term_energies.csv
+    /// The degeneracy-weighted mean of the term energies of tests/data/check-values/term_energies.csv
     /// (sympy, own Slater-determinant code; copied from ../shared/check-values) is
     /// the configuration-average energy: our coefficients must equal it.
     #[test]
     fn average_matches_weighted_mean_of_sympy_term_energies() {
-        let text = include_str!("../../tests/data/term_energies.csv");
+        let text = include_str!("../../tests/data/check-values/term_energies.csv");
         let mut lines = text.lines().skip(1);
         let header: Vec<&str> = lines.next().unwrap().split(',').collect();
         let column = |name: &str| header.iter().position(|h| *h == name).unwrap();

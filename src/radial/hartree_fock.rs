@@ -960,10 +960,10 @@ mod tests {
         }
     }
 
-    /// He I levels of tests/data/HeI-levels.csv (NIST ASD 2014 export, copied from
+    /// He I levels of tests/data/reference-data/HeI-levels.csv (NIST ASD 2014 export, copied from
     /// ../shared/reference-data), cm⁻¹, by (configuration, term, J).
     fn helium_level(config: &str, term: &str, j: &str) -> f64 {
-        let text = include_str!("../../tests/data/HeI-levels.csv");
+        let text = include_str!("../../tests/data/reference-data/HeI-levels.csv");
         text.lines()
             .skip(1)
             .map(|line| line.splitn(5, ',').collect::<Vec<_>>())
@@ -976,7 +976,7 @@ mod tests {
     fn helium_singlet_triplet_splittings_from_exchange_integrals() {
         // First order in the electron interaction, 1s ns: E(¹S) − E(³S) = 2G⁰(1s,ns);
         // 1s np: E(¹P) − E(³P) = 2G¹(1s,np)/3 (term energies of s.s' and s.p in
-        // tests/data/term_energies.csv, sympy). Published levels: NIST ASD 2014.
+        // tests/data/check-values/term_energies.csv, sympy). Published levels: NIST ASD 2014.
         let triplet_s = helium_level("1s.2s", "3S", "1");
         let singlet_s = helium_level("1s.2s", "1S", "0");
         let triplet_p = (5.0 * helium_level("1s.2p", "3P*", "2")

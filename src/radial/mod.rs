@@ -15,6 +15,7 @@ pub mod scf;
 pub mod slater;
 mod three_j;
 
+pub use grid::{GridSpec, RadialGrid};
 pub use hartree_fock::hartree_fock;
 pub use integrals::{IntegralKind, RadialIntegral, ScaleFactors, radial_integrals};
 pub use local_exchange::local_exchange;

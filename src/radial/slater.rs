@@ -165,11 +165,11 @@ mod tests {
 
     #[test]
     fn hydrogenic_slater_integrals_match_sympy() {
-        // tests/data/hydrogenic_slater.csv (exact sympy integrals, copied from
+        // tests/data/check-values/hydrogenic_slater.csv (exact sympy integrals, copied from
         // ../shared/check-values): value = coefficient × Z hartree. It includes the
         // textbook F⁰(1s,1s) = 5Z/8, J(1s2s) = 17Z/81, K(1s2s) = 16Z/729,
         // J(1s2p) = 59Z/243 and K(1s2p) = G¹/3 = 112Z/6561.
-        let text = include_str!("../../tests/data/hydrogenic_slater.csv");
+        let text = include_str!("../../tests/data/check-values/hydrogenic_slater.csv");
         let mut checked = 0;
         for z in [1.0, 2.0, 26.0] {
             let spec = GridSpec {

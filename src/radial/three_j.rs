@@ -28,11 +28,11 @@ pub(crate) fn three_j_zero_squared(l1: u32, l2: u32, l3: u32) -> f64 {
 mod tests {
     use super::*;
 
-    /// Rows of tests/data/wigner3j.csv (sympy.physics.wigner.wigner_3j, exact;
+    /// Rows of tests/data/check-values/wigner3j.csv (sympy.physics.wigner.wigner_3j, exact;
     /// copied from ../shared/check-values) with integer j and all m = 0.
     #[test]
     fn matches_sympy_for_every_all_zero_m_row() {
-        let text = include_str!("../../tests/data/wigner3j.csv");
+        let text = include_str!("../../tests/data/check-values/wigner3j.csv");
         let mut checked = 0;
         for line in text.lines().skip(2) {
             let fields: Vec<&str> = line.split(',').collect();
