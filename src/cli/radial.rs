@@ -164,6 +164,8 @@ impl Request {
         if let Some(r_max) = args.r_max {
             grid.r_max_bohr = r_max;
         }
+        crate::radial::RadialGrid::new(species.atomic_number as f64, grid)
+            .map_err(|e| CliError::Message(format!("--grid-step/--r-max: {e}")))?;
         let options = ScfOptions {
             grid,
             max_iterations: args.max_iterations,
@@ -491,7 +493,9 @@ mod tests {
         }
         let mut argv = vec!["radial"];
         argv.extend_from_slice(list);
-        Wrapper::parse_from(argv).args
+        Wrapper::try_parse_from(argv)
+            .expect("the test arguments parse")
+            .args
     }
 
     #[test]
@@ -551,12 +555,22 @@ mod tests {
             "He",
             "--config",
             "1s2",
-            "--scale-zeta",
-            "-1",
+            "--scale-zeta=-1",
         ]))
         .unwrap_err()
         .to_string();
         assert!(scale.contains("zeta"), "{scale}");
+        let step = Request::from_args(&args(&[
+            "--element",
+            "He",
+            "--config",
+            "1s2",
+            "--grid-step",
+            "0.5",
+        ]))
+        .unwrap_err()
+        .to_string();
+        assert!(step.contains("--grid-step"), "{step}");
         let twice = Request::from_args(&args(&[
             "--element",
             "He",

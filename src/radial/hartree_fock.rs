@@ -19,17 +19,30 @@
 //! On the logarithmic grid each orbital's equation is a symmetric generalised
 //! eigenproblem H y = ε W y (y = P/√r, W = 2r²), whose kinetic part is Numerov's
 //! operator ([`super::operator`]) and whose exchange part is applied through Y^k
-//! functions, exactly, without lagging it. Each orbital in turn takes one or two
-//! steps of a Davidson-type iteration: the residual (H − εW)y, kept orthogonal to
-//! the other orbitals of its l (this projection stands for the off-diagonal
-//! Lagrange multipliers ε_ab), is preconditioned with the shifted local operator as
-//! in Olsen, Jørgensen & Simons 1990 (Chem. Phys. Lett. 169, 463), and the best
-//! combination of old orbital and correction is chosen by the Rayleigh–Ritz
-//! method. When a pair of orbitals of one l is not made of two closed shells, the
-//! energy also depends on the rotation mixing them; each such rotation angle is
-//! then set by a Newton step on E_av (Froese Fischer 1977, §7.4, "rotation
-//! analysis"). The iterations start from the local-exchange orbitals of
-//! [`super::local_exchange`].
+//! functions, exactly, without lagging it. Each iteration:
+//!
+//! 1. every orbital in turn takes two steps of a Davidson-type iteration: the
+//!    residual (H − εW)y, kept orthogonal to the other orbitals of its l (this
+//!    projection stands for the off-diagonal Lagrange multipliers ε_ab), is
+//!    preconditioned with the shifted local operator (Olsen, Jørgensen & Simons
+//!    1990, Chem. Phys. Lett. 169, 463), and the combination of old orbital and
+//!    correction is chosen by the Rayleigh–Ritz method, keeping the root nearest
+//!    the old orbital (so an excited orbital such as Na 7s stays itself);
+//! 2. closed shells of one l, whose mixing leaves E_av unchanged, are made the
+//!    canonical ones that diagonalise the Fock matrix among them;
+//! 3. the other pairs of one l are fixed: by a Newton step on E_av in their
+//!    rotation angle when the inner orbital is closed (Froese Fischer 1977,
+//!    §7.4, "rotation analysis"), and otherwise by making the inner orbital an
+//!    eigenfunction of its own operator within the pair (see
+//!    [`Solver::fix_mixing`]: this keeps excited configurations such as He 1s2s
+//!    from sliding towards the one with the vacancy filled; the virial theorem
+//!    then holds only approximately, since E_av is not stationary in that angle);
+//! 4. the orbitals are extrapolated from the last six iterations by Pulay's
+//!    method (DIIS).
+//!
+//! The iterations start from the local-exchange orbitals of
+//! [`super::local_exchange`], and stop when no orbital changes by more than
+//! [`ScfOptions::orbital_tolerance`] and the energy is steady.
 
 use crate::notation::Configuration;
 
@@ -113,6 +126,9 @@ pub fn hartree_fock(
         residual,
     })
 }
+
+/// Recent iterations (orbitals before, orbitals after), for the extrapolation.
+type History = std::collections::VecDeque<(Vec<Vec<f64>>, Vec<Vec<f64>>)>;
 
 /// A term of an orbital's exchange operator: c · Y^k(b, ·)/r P_b.
 #[derive(Debug, Clone, Copy)]
@@ -363,7 +379,7 @@ impl<'g> Solver<'g> {
                 *v -= overlap * w;
             }
             let delta_norm = self.dot_s(&delta, &delta).sqrt();
-            if !(delta_norm > 1e-14) {
+            if delta_norm.is_nan() || delta_norm <= 1e-14 {
                 break;
             }
             delta.iter_mut().for_each(|v| *v /= delta_norm);
@@ -379,7 +395,7 @@ impl<'g> Solver<'g> {
             let a21 = Self::dot(&delta, &hu);
             let mean = 0.5 * (a11 + a22);
             let discriminant = 0.25 * (a11 - a22).powi(2) + a12 * a21;
-            if !(discriminant >= 0.0) {
+            if discriminant.is_nan() || discriminant < 0.0 {
                 break;
             }
             let mut best: (f64, f64, f64) = (0.0, 0.0, 0.0);
@@ -395,7 +411,7 @@ impl<'g> Solver<'g> {
                     second
                 };
                 let n = norm((x, y));
-                if !(n > 0.0) {
+                if n.is_nan() || n <= 0.0 {
                     continue;
                 }
                 let (c1, c2) = (x / n, y / n);
@@ -618,7 +634,7 @@ impl<'g> Solver<'g> {
         let minus = self.pair_energy(a, b, &pa, &pb);
         let gradient = (plus - minus) / (2.0 * STEP);
         let curvature = (plus - 2.0 * e0 + minus) / (STEP * STEP);
-        if !(curvature > 0.0) {
+        if curvature.is_nan() || curvature <= 0.0 {
             return;
         }
         let theta = (-gradient / curvature).clamp(-0.1, 0.1);
@@ -666,8 +682,7 @@ impl<'g> Solver<'g> {
         let mut last_energy = self.energy().total_hartree;
         let mut residual = f64::INFINITY;
         // (orbitals before, orbitals after) of recent iterations, for extrapolation.
-        let mut history: std::collections::VecDeque<(Vec<Vec<f64>>, Vec<Vec<f64>>)> =
-            Default::default();
+        let mut history = History::new();
         for iteration in 1..=options.max_iterations {
             let before = self.u.clone();
             for a in 0..self.u.len() {
@@ -743,10 +758,7 @@ impl<'g> Solver<'g> {
     /// Pulay's extrapolation (DIIS; Pulay 1980, Chem. Phys. Lett. 73, 393), also
     /// known as Anderson mixing: the combination Σ c_i G(x_i), Σ c_i = 1, whose
     /// combined change Σ c_i (G(x_i) − x_i) is smallest in the S-norm.
-    fn extrapolate(
-        &self,
-        history: &std::collections::VecDeque<(Vec<Vec<f64>>, Vec<Vec<f64>>)>,
-    ) -> Option<Vec<Vec<f64>>> {
+    fn extrapolate(&self, history: &History) -> Option<Vec<Vec<f64>>> {
         let m = history.len();
         let changes: Vec<Vec<Vec<f64>>> = history
             .iter()
@@ -772,7 +784,7 @@ impl<'g> Solver<'g> {
             system[(m, i)] = 1.0;
         }
         let scale = (0..m).map(|i| system[(i, i)]).fold(0.0, f64::max);
-        if !(scale > 0.0) {
+        if scale.is_nan() || scale <= 0.0 {
             return None;
         }
         for i in 0..m {

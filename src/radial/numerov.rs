@@ -108,7 +108,7 @@ pub fn solve_bound_state(
         .map(|i| potential[i] + centrifugal(i))
         .fold(f64::INFINITY, f64::min);
     let mut e_hi = (potential[size - 1] + centrifugal(size - 1)).max(0.0);
-    if !(e_lo < e_hi) {
+    if e_lo.is_nan() || e_hi.is_nan() || e_lo >= e_hi {
         return Err(RadialError::NoBoundState {
             n,
             l,
@@ -167,8 +167,8 @@ pub fn solve_bound_state(
         // Inward, from where the WKB exponent ∫√g dx exceeds 60.
         let mut exponent = 0.0;
         let mut end = size - 2;
-        for i in m..size - 1 {
-            let g = (1.0 - f[i]) * 12.0 / h2;
+        for (i, f) in f.iter().enumerate().take(size - 1).skip(m) {
+            let g = (1.0 - f) * 12.0 / h2;
             exponent += h * g.max(0.0).sqrt();
             if exponent > 60.0 {
                 end = i;

@@ -219,9 +219,9 @@ mod tests {
             out
         };
         let matrix: Vec<Vec<f64>> = (0..n).map(column).collect(); // matrix[j] = column j
-        for i in 0..n {
-            for j in 0..n {
-                assert!((matrix[j][i] - matrix[i][j]).abs() < 1e-10 * matrix[i][i].abs());
+        for (i, row) in matrix.iter().enumerate() {
+            for (j, value) in row.iter().enumerate() {
+                assert!((matrix[j][i] - value).abs() < 1e-10 * row[i].abs());
             }
         }
         // (K + diag(e)) t = b solved, then checked by applying K.

@@ -17,8 +17,8 @@ pub struct ScfOptions {
     pub grid: GridSpec,
     /// Most iterations. Default: 200.
     pub max_iterations: u32,
-    /// Converged when every orbital's residual ‖(f − ε)P − Σ ε_ab P_b‖ (an L² norm,
-    /// hartree bohr^−½) is below this. Default: 10⁻⁷.
+    /// Converged when no orbital changed by more than this in the last iteration
+    /// (‖ΔP‖, the L² norm of the change, ∫ΔP² dr = ‖ΔP‖²). Default: 10⁻⁷.
     pub orbital_tolerance: f64,
     /// … and the total energy changed by less than this fraction of itself in the
     /// last iteration. Default: 10⁻¹².
@@ -86,8 +86,8 @@ pub struct ScfProgress {
     pub total_energy_hartree: f64,
     /// Change of the total energy in the iteration, hartree.
     pub energy_change_hartree: f64,
-    /// Largest orbital residual (Hartree–Fock) or largest change of an orbital
-    /// energy (local exchange), hartree.
+    /// Largest change ‖ΔP‖ of an orbital (Hartree–Fock) or of an orbital energy
+    /// (local exchange, hartree) in the iteration.
     pub residual: f64,
     /// The damping in use.
     pub damping: f64,
@@ -184,8 +184,9 @@ pub struct ScfSolution {
     pub energy: EnergyParts,
     /// Iterations used (0 for hydrogenic orbitals).
     pub iterations: u32,
-    /// Largest orbital residual at the end (Hartree–Fock), hartree bohr^−½; for the
-    /// other methods, the last change of an orbital energy, hartree.
+    /// Largest change ‖ΔP‖ of an orbital in the last iteration (Hartree–Fock); for
+    /// local exchange, the last change of an orbital energy, hartree; 0 for
+    /// hydrogenic orbitals.
     pub residual: f64,
 }
 
