@@ -18,7 +18,7 @@
 //!
 //! On the logarithmic grid each orbital's equation is a symmetric generalised
 //! eigenproblem H y = ε W y (y = P/√r, W = 2r²), whose kinetic part is Numerov's
-//! operator ([`super::operator`]) and whose exchange part is applied through Y^k
+//! operator (the private `operator` module) and whose exchange part is applied through Y^k
 //! functions, exactly, without lagging it. Each iteration:
 //!
 //! 1. every orbital in turn takes two steps of a Davidson-type iteration: the
@@ -34,14 +34,14 @@
 //!    rotation angle when the inner orbital is closed (Froese Fischer 1977,
 //!    §7.4, "rotation analysis"), and otherwise by making the inner orbital an
 //!    eigenfunction of its own operator within the pair (see
-//!    [`Solver::fix_mixing`]: this keeps excited configurations such as He 1s2s
+//!    the comment on `fix_mixing` in the source: this keeps excited configurations such as He 1s2s
 //!    from sliding towards the one with the vacancy filled; the virial theorem
 //!    then holds only approximately, since E_av is not stationary in that angle);
 //! 4. the orbitals are extrapolated from the last six iterations by Pulay's
 //!    method (DIIS).
 //!
 //! The iterations start from the local-exchange orbitals of
-//! [`super::local_exchange`], and stop when no orbital changes by more than
+//! [`mod@super::local_exchange`], and stop when no orbital changes by more than
 //! [`ScfOptions::orbital_tolerance`] and the energy is steady.
 
 use crate::notation::Configuration;

@@ -17,9 +17,9 @@
 //!   number of grid points.
 //! - [`average`]: the configuration-average energy as a list of Slater integrals.
 //! - [`energy`]: E_av of a set of orbitals, with its kinetic and potential parts.
-//! - [`local_exchange`]: the Hartree–Fock–Slater field (Slater exchange, Latter
+//! - [`mod@local_exchange`]: the Hartree–Fock–Slater field (Slater exchange, Latter
 //!   tail), which also starts the Hartree–Fock iterations.
-//! - [`hartree_fock`]: Hartree–Fock for the average energy of a configuration.
+//! - [`mod@hartree_fock`]: Hartree–Fock for the average energy of a configuration.
 //! - [`scf`]: settings, progress reports ([`ScfObserver`]) and solutions shared by
 //!   the field methods.
 //! - [`integrals`]: the named, scaled integrals of one or more configurations
