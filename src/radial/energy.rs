@@ -95,3 +95,60 @@ pub fn average_energy(
         electron_electron_hartree: electron_electron,
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::notation::Subshell;
+    use crate::radial::grid::GridSpec;
+    use crate::radial::hydrogenic::hydrogenic_orbital;
+    use proptest::prelude::*;
+    use proptest::test_runner::RngSeed;
+
+    /// E_av of He 1s² with a hydrogenic 1s of charge ζ.
+    fn helium_with_screened_1s(zeta: f64) -> EnergyParts {
+        let grid = RadialGrid::new(2.0, GridSpec::default()).unwrap();
+        let p = hydrogenic_orbital(&grid, 1, 0, zeta).unwrap();
+        let shells = [Subshell {
+            n: 1,
+            l: 0,
+            occupancy: 2,
+        }];
+        average_energy(&grid, 2.0, &AverageEnergyExpression::new(&shells), &[&p])
+    }
+
+    #[test]
+    fn first_order_helium() {
+        // Unscreened orbitals: E = −Z² + 5Z/8 = −2.75 hartree (first-order
+        // perturbation theory; Bethe & Salpeter 1957, §32); kinetic 2·Z²/2 = 4.
+        // Tolerances: the O(h⁴) error of Numerov's kinetic operator (about 1e-9
+        // here) and the density inside the first grid point (below 1e-9).
+        let e = helium_with_screened_1s(2.0);
+        assert!((e.total_hartree + 2.75).abs() < 2e-9);
+        assert!((e.kinetic_hartree - 4.0).abs() < 2e-9);
+        // The variational optimum ζ = Z − 5/16 = 27/16: E = −(27/16)² = −2.84766
+        // (Bethe & Salpeter 1957, eq. 32.20), with −V/T = 2 there.
+        let best = helium_with_screened_1s(27.0 / 16.0);
+        assert!((best.total_hartree + (27.0f64 / 16.0).powi(2)).abs() < 2e-9);
+        assert!((best.virial_ratio() - 2.0).abs() < 1e-9);
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig {
+            cases: 24,
+            rng_seed: RngSeed::Fixed(6),
+            ..ProptestConfig::default()
+        })]
+
+        /// For any ζ: T = ζ², V_nuclear = −2Zζ, F⁰(1s,1s) = 5ζ/8 (Bethe & Salpeter
+        /// 1957, §32), so E(ζ) = ζ² − 2Zζ + 5ζ/8 with Z = 2. Tolerance 1e-8
+        /// relative, as in `first_order_helium`.
+        #[test]
+        fn helium_energy_is_the_textbook_function_of_the_screening(zeta in 0.5f64..6.0) {
+            let e = helium_with_screened_1s(zeta);
+            prop_assert!((e.kinetic_hartree - zeta * zeta).abs() < 1e-8 * zeta * zeta);
+            prop_assert!((e.nuclear_hartree + 4.0 * zeta).abs() < 1e-8 * zeta);
+            prop_assert!((e.electron_electron_hartree - 5.0 * zeta / 8.0).abs() < 1e-8 * zeta);
+        }
+    }
+}
