@@ -118,7 +118,8 @@ pub(crate) fn iterate(
     let expression = AverageEnergyExpression::new(subshells);
     let mut orbitals = start;
     let mut potential = local_exchange_potential(grid, z, &orbitals);
-    let mut last_energy = f64::NAN;
+    let p: Vec<&[f64]> = orbitals.iter().map(|o| o.p.as_slice()).collect();
+    let mut last_energy = average_energy(grid, z, &expression, &p).total_hartree;
     let mut change = f64::INFINITY;
     for iteration in 1..=max_iterations {
         change = 0.0;
