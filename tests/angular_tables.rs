@@ -29,7 +29,9 @@ fn twice(text: &str) -> i32 {
 
 fn rational(text: &str) -> BigRational {
     match text.split_once('/') {
-        Some((p, q)) => BigRational::new(p.parse::<BigInt>().unwrap(), q.parse::<BigInt>().unwrap()),
+        Some((p, q)) => {
+            BigRational::new(p.parse::<BigInt>().unwrap(), q.parse::<BigInt>().unwrap())
+        }
         None => BigRational::from_integer(text.parse::<BigInt>().unwrap()),
     }
 }
