@@ -6,6 +6,7 @@
 //! into place, so an interrupted run never leaves half a file.
 
 pub mod args;
+pub mod levels;
 pub mod output;
 
 use std::io::{self, Write};
@@ -37,6 +38,7 @@ pub fn run(cli: Cli) -> Result<(), CliError> {
         Command::Assign(_) => Err(CliError::Message(
             "the assign command is being built".into(),
         )),
+        Command::Levels(args) => levels::run(args),
     }
 }
 
