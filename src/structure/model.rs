@@ -427,10 +427,18 @@ pub fn parse_model(text: &str, source: &str) -> Result<LoadedModel, ModelError> 
             .key
             .parse()
             .map_err(|m: String| lines.error(entry.key_offset, &entry.key, m))?;
-        let id = ParameterId {
+        let mut id = ParameterId {
             scope: entry.scope,
             radial,
         };
+        if needed.binary_search(&id).is_err()
+            && let Some(same) = needed
+                .iter()
+                .find(|p| p.scope == entry.scope && p.radial.same_integral(&radial))
+        {
+            // Another spelling of the same R^k integral.
+            id = *same;
+        }
         if needed.binary_search(&id).is_err() {
             let list = names_in(entry.scope);
             let hint = if list.is_empty() {
@@ -689,7 +697,10 @@ fn resolve_tie(
         None => (text, None),
     };
     let radial: Radial = name.parse()?;
-    let candidates: Vec<&ParameterId> = needed.iter().filter(|p| p.radial == radial).collect();
+    let candidates: Vec<&ParameterId> = needed
+        .iter()
+        .filter(|p| p.radial.same_integral(&radial))
+        .collect();
     let found = match scope_text {
         Some(s) => candidates
             .iter()

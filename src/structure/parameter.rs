@@ -61,22 +61,45 @@ pub enum Radial {
 }
 
 impl Radial {
-    /// R^k(ab, cd) in canonical form: R^k(ab,cd) = ∫∫ P_a(1)P_c(1) (r<^k/r>^(k+1))
-    /// P_b(2)P_d(2) is unchanged by a↔c, by b↔d and by exchanging the two electrons
-    /// (a,c)↔(b,d); the canonical form is the smallest of the eight images.
+    /// R^k(ab, cd), named in canonical form. R^k(ab,cd) = ∫∫ P_a(1)P_c(1)
+    /// (r<^k/r>^(k+1)) P_b(2)P_d(2): a, b are the orbitals replaced, c, d the ones
+    /// they become. The name keeps that reading and picks the smallest of its four
+    /// equivalent spellings: R^k(ab,cd) = R^k(cd,ab) = R^k(ba,dc) = R^k(dc,ba).
+    /// Other spellings of the same integral (a↔c alone) are recognised by
+    /// [`Radial::same_integral`].
     pub fn interaction(k: u32, a: Orbital, b: Orbital, c: Orbital, d: Orbital) -> Radial {
-        let images = [
-            [a, b, c, d],
-            [c, b, a, d],
-            [a, d, c, b],
-            [c, d, a, b],
-            [b, a, d, c],
-            [d, a, b, c],
-            [b, c, d, a],
-            [d, c, b, a],
-        ];
+        let images = [[a, b, c, d], [c, d, a, b], [b, a, d, c], [d, c, b, a]];
         let orbitals = images.into_iter().min().unwrap_or([a, b, c, d]);
         Radial::Interaction { k, orbitals }
+    }
+
+    /// True when two parameters are the same radial integral: equal, or R^k
+    /// integrals related by the symmetries a↔c, b↔d and (a,c)↔(b,d) of
+    /// ∫∫ P_a P_c (1) P_b P_d (2) (Slater 1960, vol. 1, §13-3).
+    pub fn same_integral(&self, other: &Radial) -> bool {
+        fn class(k: u32, [a, b, c, d]: [Orbital; 4]) -> (u32, [Orbital; 4]) {
+            let images = [
+                [a, b, c, d],
+                [c, b, a, d],
+                [a, d, c, b],
+                [c, d, a, b],
+                [b, a, d, c],
+                [d, a, b, c],
+                [b, c, d, a],
+                [d, c, b, a],
+            ];
+            (k, images.into_iter().min().unwrap_or([a, b, c, d]))
+        }
+        match (self, other) {
+            (
+                Radial::Interaction { k, orbitals },
+                Radial::Interaction {
+                    k: k2,
+                    orbitals: o2,
+                },
+            ) => class(*k, *orbitals) == class(*k2, *o2),
+            _ => self == other,
+        }
     }
 
     /// Orbitals involved.
@@ -261,19 +284,20 @@ mod tests {
 
     #[test]
     fn interaction_integrals_have_one_canonical_name() {
-        // R^k(ab,cd) = R^k(cb,ad) = R^k(ad,cb) = R^k(ba,dc) (symmetry of the
-        // two-electron integral; Slater 1960, vol. 1, eq. 13-18; common practice).
+        // R^k(ab,cd) = R^k(cd,ab) = R^k(ba,dc), and also = R^k(cb,ad) = R^k(ad,cb)
+        // (symmetry of the two-electron integral; Slater 1960, vol. 1, §13-3;
+        // common practice).
         let r = Radial::interaction(1, o("3s"), o("3s"), o("3p"), o("3p"));
         assert_eq!(r.to_string(), "R1(3s3s,3p3p)");
         assert_eq!(
-            Radial::interaction(1, o("3p"), o("3s"), o("3s"), o("3p")),
+            Radial::interaction(1, o("3p"), o("3p"), o("3s"), o("3s")),
             r
         );
-        assert_eq!(
-            Radial::interaction(1, o("3s"), o("3p"), o("3p"), o("3s")),
-            r
-        );
-        let r = Radial::interaction(2, o("4s"), o("3d"), o("3d"), o("3d"));
+        let other = Radial::interaction(1, o("3p"), o("3s"), o("3s"), o("3p"));
+        assert_ne!(other, r);
+        assert!(other.same_integral(&r) && r.same_integral(&other));
+        let r = Radial::interaction(2, o("3d"), o("4s"), o("3d"), o("3d"));
         assert_eq!(r.to_string(), "R2(3d3d,3d4s)");
+        assert!(!r.same_integral(&Radial::interaction(2, o("3d"), o("3d"), o("4s"), o("4s"))));
     }
 }
