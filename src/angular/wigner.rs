@@ -1,5 +1,9 @@
 //! Wigner 3j and 6j symbols by Racah's formulas, and Clebsch–Gordan coefficients.
 
+use std::collections::HashMap;
+use std::hash::Hash;
+use std::sync::{Mutex, OnceLock};
+
 use num_rational::BigRational;
 use num_traits::Zero;
 
@@ -82,9 +86,37 @@ pub fn three_j_exact(two_j: [u32; 3], two_m: [i32; 3]) -> Result<SignedSqrt, Ang
     Ok(SignedSqrt::from_parts(sign, prefactor, sum))
 }
 
-/// The Wigner 3j symbol as `f64` (see [`three_j_exact`]).
+/// Remember at most this many values per symbol (a bound on memory; the level
+/// model of one ion needs a few thousand).
+const CACHE_LIMIT: usize = 1 << 20;
+
+/// Look `key` up in `cache`, computing and storing it on a miss. The exact
+/// big-rational sums cost microseconds each, and building a level model asks for
+/// the same few thousand symbols many times over.
+fn memoised<K: Hash + Eq + Copy>(
+    cache: &'static OnceLock<Mutex<HashMap<K, f64>>>,
+    key: K,
+    compute: impl FnOnce() -> Result<f64, AngularError>,
+) -> Result<f64, AngularError> {
+    let map = cache.get_or_init(|| Mutex::new(HashMap::new()));
+    if let Some(&value) = map.lock().ok().and_then(|m| m.get(&key).copied()).as_ref() {
+        return Ok(value);
+    }
+    let value = compute()?;
+    if let Ok(mut m) = map.lock()
+        && m.len() < CACHE_LIMIT
+    {
+        m.insert(key, value);
+    }
+    Ok(value)
+}
+
+/// The Wigner 3j symbol as `f64` (see [`three_j_exact`]); values are remembered.
 pub fn three_j(two_j: [u32; 3], two_m: [i32; 3]) -> Result<f64, AngularError> {
-    three_j_exact(two_j, two_m).map(|v| v.to_f64())
+    static CACHE: OnceLock<Mutex<HashMap<([u32; 3], [i32; 3]), f64>>> = OnceLock::new();
+    memoised(&CACHE, (two_j, two_m), || {
+        three_j_exact(two_j, two_m).map(|v| v.to_f64())
+    })
 }
 
 /// The exact Wigner 6j symbol {j₁ j₂ j₃; j₄ j₅ j₆}, arguments doubled.
@@ -139,9 +171,10 @@ pub fn six_j_exact(two_j: [u32; 6]) -> Result<SignedSqrt, AngularError> {
     Ok(SignedSqrt::from_parts(1, prefactor, sum))
 }
 
-/// The Wigner 6j symbol as `f64` (see [`six_j_exact`]).
+/// The Wigner 6j symbol as `f64` (see [`six_j_exact`]); values are remembered.
 pub fn six_j(two_j: [u32; 6]) -> Result<f64, AngularError> {
-    six_j_exact(two_j).map(|v| v.to_f64())
+    static CACHE: OnceLock<Mutex<HashMap<[u32; 6], f64>>> = OnceLock::new();
+    memoised(&CACHE, two_j, || six_j_exact(two_j).map(|v| v.to_f64()))
 }
 
 /// The exact Clebsch–Gordan coefficient ⟨j₁ m₁ j₂ m₂ | J M⟩ (Condon–Shortley
@@ -161,7 +194,8 @@ pub fn clebsch_gordan_exact(
     Ok(symbol.scale(sign, rational(two_j as i64 + 1)))
 }
 
-/// The Clebsch–Gordan coefficient as `f64` (see [`clebsch_gordan_exact`]).
+/// The Clebsch–Gordan coefficient as `f64` (see [`clebsch_gordan_exact`]);
+/// values are remembered.
 pub fn clebsch_gordan(
     two_j1: u32,
     two_m1: i32,
@@ -170,7 +204,18 @@ pub fn clebsch_gordan(
     two_j: u32,
     two_m: i32,
 ) -> Result<f64, AngularError> {
-    clebsch_gordan_exact(two_j1, two_m1, two_j2, two_m2, two_j, two_m).map(|v| v.to_f64())
+    static CACHE: OnceLock<Mutex<HashMap<[i32; 6], f64>>> = OnceLock::new();
+    let key = [
+        two_j1 as i32,
+        two_m1,
+        two_j2 as i32,
+        two_m2,
+        two_j as i32,
+        two_m,
+    ];
+    memoised(&CACHE, key, || {
+        clebsch_gordan_exact(two_j1, two_m1, two_j2, two_m2, two_j, two_m).map(|v| v.to_f64())
+    })
 }
 
 #[cfg(test)]

@@ -376,6 +376,7 @@ pub(crate) fn build_block(
 
     // Spin–orbit double-reduced matrix elements, per configuration and subshell.
     let mut spin_orbit: Vec<(usize, usize, ParameterId, f64)> = Vec::new();
+    let mut three_js: HashMap<(u32, u32, i32), f64> = HashMap::new();
     for (local, config) in coupler.configurations.iter().enumerate() {
         let terms: Vec<usize> = (0..basis.len())
             .filter(|&t| basis[t].local_configuration == local)
@@ -403,10 +404,15 @@ pub(crate) fn build_block(
                     }
                     let ml = a.l.min(b.l) as i32;
                     let ms = a.two_s.min(b.two_s) as i32;
+                    let mut three = |j1: u32, j3: u32, m: i32| {
+                        *three_js
+                            .entry((j1, j3, m))
+                            .or_insert_with(|| three_j([j1, 2, j3], [-m, 0, m]).unwrap_or(0.0))
+                    };
                     let factor = phase((a.l as i32 - ml) as i64)
-                        * three_j([2 * a.l, 2, 2 * b.l], [-2 * ml, 0, 2 * ml]).unwrap_or(0.0)
+                        * three(2 * a.l, 2 * b.l, 2 * ml)
                         * phase(((a.two_s as i32 - ms) / 2) as i64)
-                        * three_j([a.two_s, 2, b.two_s], [-ms, 0, ms]).unwrap_or(0.0);
+                        * three(a.two_s, b.two_s, ms);
                     if factor.abs() < 1e-14 {
                         continue;
                     }
@@ -439,6 +445,8 @@ pub(crate) fn build_block(
     }
     let mut j_blocks = Vec::new();
     let mut j_coefficients = Vec::new();
+    // 6j symbols repeat across pairs of states: compute each once.
+    let mut six_js: HashMap<[u32; 5], f64> = HashMap::new();
     for two_j in two_js {
         let states: Vec<usize> = (0..basis.len())
             .filter(|&t| crate::angular::triangle(2 * basis[t].l, basis[t].two_s, two_j))
@@ -479,7 +487,11 @@ pub(crate) fn build_block(
                 continue;
             };
             let (a, b) = (&basis[t], &basis[u]);
-            let sixj = six_j([2 * a.l, a.two_s, two_j, b.two_s, 2 * b.l, 2]).unwrap_or(0.0);
+            let sixj = *six_js
+                .entry([2 * a.l, a.two_s, two_j, b.two_s, 2 * b.l])
+                .or_insert_with(|| {
+                    six_j([2 * a.l, a.two_s, two_j, b.two_s, 2 * b.l, 2]).unwrap_or(0.0)
+                });
             let sign = phase(((2 * b.l + a.two_s + two_j) / 2) as i64);
             let value = sign * sixj * reduced;
             if value.abs() > ZERO {

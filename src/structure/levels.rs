@@ -45,9 +45,9 @@ pub struct Level {
     pub derivatives: Vec<f64>,
 }
 
-/// Landé g of a pure LS state with anomalous spin g_s:
-/// g = 1 + (g_s − 1)[J(J+1) − L(L+1) + S(S+1)]/[2J(J+1)], and g = g_s·0 + … = 0
-/// convention aside, J = 0 gives 0 (Landé 1923; Condon & Shortley 1935, §16⁵).
+/// Landé g of a pure LS state with the electron's g_s:
+/// g = 1 + (g_s − 1)[J(J+1) − L(L+1) + S(S+1)]/[2J(J+1)] (Landé 1923; Condon &
+/// Shortley 1935, §16⁵); 0 for J = 0, which has no magnetic moment.
 pub fn lande_g_ls(l: u32, two_s: u32, two_j: u32) -> f64 {
     if two_j == 0 {
         return 0.0;
@@ -84,18 +84,29 @@ impl LevelStructure {
                 let eigen = SymmetricEigen::new(h);
                 let mut order: Vec<usize> = (0..eigen.eigenvalues.len()).collect();
                 order.sort_by(|&x, &y| eigen.eigenvalues[x].total_cmp(&eigen.eigenvalues[y]));
-                for (root, &e) in order.iter().enumerate() {
-                    let mut vector: Vec<f64> =
-                        eigen.eigenvectors.column(e).iter().copied().collect();
-                    let largest = vector
+                // Eigenvectors as columns, lowest first, largest component positive.
+                let mut vectors = eigen.eigenvectors.select_columns(&order);
+                for mut column in vectors.column_iter_mut() {
+                    let largest = column
                         .iter()
                         .copied()
                         .max_by(|a, b| a.abs().total_cmp(&b.abs()))
                         .unwrap_or(1.0);
                     if largest < 0.0 {
-                        vector.iter_mut().for_each(|x| *x = -*x);
+                        column.neg_mut();
                     }
-                    levels.push(self.level(b, jb, root, eigen.eigenvalues[e], vector));
+                }
+                // dE/dP_p for every root at once: diag(Vᵀ C_p V).
+                let mut derivatives = vec![vec![0.0; self.parameters.len()]; order.len()];
+                for (p, c) in &j_block.coefficients {
+                    let cv = c * &vectors;
+                    for (root, d) in derivatives.iter_mut().enumerate() {
+                        d[*p] = vectors.column(root).dot(&cv.column(root));
+                    }
+                }
+                for (root, (&e, d)) in order.iter().zip(derivatives).enumerate() {
+                    let vector: Vec<f64> = vectors.column(root).iter().copied().collect();
+                    levels.push(self.level(b, jb, root, eigen.eigenvalues[e], vector, d));
                 }
             }
         }
@@ -103,7 +114,15 @@ impl LevelStructure {
         Ok(levels)
     }
 
-    fn level(&self, b: usize, jb: usize, root: usize, energy: f64, vector: Vec<f64>) -> Level {
+    fn level(
+        &self,
+        b: usize,
+        jb: usize,
+        root: usize,
+        energy: f64,
+        vector: Vec<f64>,
+        derivatives: Vec<f64>,
+    ) -> Level {
         let block = &self.blocks[b];
         let j_block = &block.j_blocks[jb];
         let mut composition: Vec<Component> = j_block
@@ -137,11 +156,6 @@ impl LevelStructure {
             .iter()
             .max_by(|a, b| a.1.total_cmp(&b.1))
             .map_or(0, |s| s.0);
-        let mut derivatives = vec![0.0; self.parameters.len()];
-        for (p, c) in &j_block.coefficients {
-            let cv = c * nalgebra::DVector::from_column_slice(&vector);
-            derivatives[*p] = vector.iter().zip(cv.iter()).map(|(a, b)| a * b).sum();
-        }
         Level {
             energy_cm1: energy,
             j: HalfInt::from_twice(j_block.two_j),
