@@ -134,7 +134,7 @@ pub fn level_rows(structure: &LevelStructure, levels: &[Level], further: usize) 
 /// A terminal table of the levels.
 pub fn render_table(species: &str, rows: &[LevelRow]) -> String {
     let mut table = Table::new();
-    table.load_style(presets::UTF8_HORIZONTAL_ONLY);
+    table.load_style(presets::UTF8_BORDERS_ONLY);
     table.set_header(vec![
         "energy (cm⁻¹)",
         "J",
@@ -148,6 +148,7 @@ pub fn render_table(species: &str, rows: &[LevelRow]) -> String {
         let further = row
             .further_components
             .iter()
+            .filter(|c| c.percent >= 0.05)
             .map(|c| format!("{:.1}% {}", c.percent, c.label))
             .collect::<Vec<_>>()
             .join(", ");

@@ -350,7 +350,6 @@ impl ShellTerms {
                 spin_state = scaled(apply_one_body(&spin_state, &lower_s), 1.0 / c);
                 two_ms -= 2;
             }
-            let _ = norm(top);
             terms.push(ShellTerm {
                 l_total: *l_total,
                 two_s: *two_s,
