@@ -90,11 +90,14 @@ pub fn three_j_exact(two_j: [u32; 3], two_m: [i32; 3]) -> Result<SignedSqrt, Ang
 /// model of one ion needs a few thousand).
 const CACHE_LIMIT: usize = 1 << 20;
 
+/// A process-wide memo of symbol values.
+type Memo<K> = OnceLock<Mutex<HashMap<K, f64>>>;
+
 /// Look `key` up in `cache`, computing and storing it on a miss. The exact
 /// big-rational sums cost microseconds each, and building a level model asks for
 /// the same few thousand symbols many times over.
 fn memoised<K: Hash + Eq + Copy>(
-    cache: &'static OnceLock<Mutex<HashMap<K, f64>>>,
+    cache: &'static Memo<K>,
     key: K,
     compute: impl FnOnce() -> Result<f64, AngularError>,
 ) -> Result<f64, AngularError> {
@@ -113,7 +116,7 @@ fn memoised<K: Hash + Eq + Copy>(
 
 /// The Wigner 3j symbol as `f64` (see [`three_j_exact`]); values are remembered.
 pub fn three_j(two_j: [u32; 3], two_m: [i32; 3]) -> Result<f64, AngularError> {
-    static CACHE: OnceLock<Mutex<HashMap<([u32; 3], [i32; 3]), f64>>> = OnceLock::new();
+    static CACHE: Memo<([u32; 3], [i32; 3])> = OnceLock::new();
     memoised(&CACHE, (two_j, two_m), || {
         three_j_exact(two_j, two_m).map(|v| v.to_f64())
     })
@@ -173,7 +176,7 @@ pub fn six_j_exact(two_j: [u32; 6]) -> Result<SignedSqrt, AngularError> {
 
 /// The Wigner 6j symbol as `f64` (see [`six_j_exact`]); values are remembered.
 pub fn six_j(two_j: [u32; 6]) -> Result<f64, AngularError> {
-    static CACHE: OnceLock<Mutex<HashMap<[u32; 6], f64>>> = OnceLock::new();
+    static CACHE: Memo<[u32; 6]> = OnceLock::new();
     memoised(&CACHE, two_j, || six_j_exact(two_j).map(|v| v.to_f64()))
 }
 
@@ -204,7 +207,7 @@ pub fn clebsch_gordan(
     two_j: u32,
     two_m: i32,
 ) -> Result<f64, AngularError> {
-    static CACHE: OnceLock<Mutex<HashMap<[i32; 6], f64>>> = OnceLock::new();
+    static CACHE: Memo<[i32; 6]> = OnceLock::new();
     let key = [
         two_j1 as i32,
         two_m1,

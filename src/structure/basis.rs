@@ -17,6 +17,9 @@ use crate::notation::{ConfigPart, Configuration, Intermediate, LsTerm, Parity, S
 /// A sparse vector over determinants, sorted by determinant.
 pub type DeterminantVector = Vec<(Determinant, f64)>;
 
+/// A partial coupling: the term of each subshell so far, and (L, 2S) after each.
+type CouplingPath = (Vec<usize>, Vec<(u32, u32)>);
+
 /// One open subshell of a configuration.
 #[derive(Debug, Clone)]
 pub(crate) struct OpenShell {
@@ -167,7 +170,7 @@ impl Coupler {
     pub fn terms(&self, local: usize, parity: Parity) -> Vec<BasisTerm> {
         let config = &self.configurations[local];
         // Partial coupling paths: (shell terms, couplings).
-        let mut paths: Vec<(Vec<usize>, Vec<(u32, u32)>)> = vec![(Vec::new(), Vec::new())];
+        let mut paths: Vec<CouplingPath> = vec![(Vec::new(), Vec::new())];
         for shell in &config.open {
             let shell_terms = self.shell_terms(shell);
             let mut next = Vec::new();
@@ -290,7 +293,7 @@ impl Coupler {
             .iter()
             .map(|(d, c)| (d.union(&config.closed), *c))
             .collect();
-        out.sort_by(|a, b| a.0.cmp(&b.0));
+        out.sort_by_key(|a| a.0);
         Arc::new(out)
     }
 
@@ -374,7 +377,7 @@ impl Coupler {
             }
             let mut v: DeterminantVector =
                 sum.into_iter().filter(|(_, c)| c.abs() > 1e-13).collect();
-            v.sort_by(|a, b| a.0.cmp(&b.0));
+            v.sort_by_key(|a| a.0);
             v
         };
         let result = Arc::new(result);

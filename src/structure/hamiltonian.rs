@@ -224,6 +224,9 @@ fn parameter_of(key: RadialKey, orbitals: &[Orbital], ci: usize, cj: usize) -> O
     })
 }
 
+/// The states of one (L, 2S) and each parameter's matrix over them.
+type LsMatrices = (Vec<usize>, BTreeMap<ParameterId, DMatrix<f64>>);
+
 /// Coefficient matrices of one block, keyed by parameter, before indexing.
 pub(crate) struct BlockMatrices {
     pub block: ParityBlock,
@@ -280,8 +283,7 @@ pub(crate) fn build_block(
         groups.entry((term.l, term.two_s)).or_default().push(t);
     }
     // ls_matrices[(L,2S)] = (terms, parameter → matrix over those terms).
-    let mut ls_matrices: BTreeMap<(u32, u32), (Vec<usize>, BTreeMap<ParameterId, DMatrix<f64>>)> =
-        BTreeMap::new();
+    let mut ls_matrices: BTreeMap<(u32, u32), LsMatrices> = BTreeMap::new();
     let mut entries = Vec::new();
     for (&(l, two_s), terms) in &groups {
         let mut index: HashMap<Determinant, usize> = HashMap::new();

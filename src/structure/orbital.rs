@@ -145,7 +145,7 @@ impl Determinant {
         }
         let swaps = self.count_below(from) + result.count_below(to);
         result.insert(to);
-        Some((if swaps % 2 == 0 { 1.0 } else { -1.0 }, result))
+        Some((if swaps.is_multiple_of(2) { 1.0 } else { -1.0 }, result))
     }
 }
 

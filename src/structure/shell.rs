@@ -58,7 +58,10 @@ fn bit(l: u32, m: i32, two_ms: i32) -> u32 {
 }
 
 fn m_of_bit(l: u32, b: u32) -> (i32, i32) {
-    (l as i32 - (b / 2) as i32, if b % 2 == 0 { 1 } else { -1 })
+    (
+        l as i32 - (b / 2) as i32,
+        if b.is_multiple_of(2) { 1 } else { -1 },
+    )
 }
 
 /// a_b on a mask: sign and result, or `None` if b is empty.
@@ -67,7 +70,10 @@ fn annihilate(mask: u32, b: u32) -> Option<(f64, u32)> {
         return None;
     }
     let below = (mask & ((1u32 << b) - 1)).count_ones();
-    Some((if below % 2 == 0 { 1.0 } else { -1.0 }, mask & !(1 << b)))
+    Some((
+        if below.is_multiple_of(2) { 1.0 } else { -1.0 },
+        mask & !(1 << b),
+    ))
 }
 
 /// a†_b on a mask: sign and result, or `None` if b is occupied.
@@ -76,7 +82,10 @@ fn create(mask: u32, b: u32) -> Option<(f64, u32)> {
         return None;
     }
     let below = (mask & ((1u32 << b) - 1)).count_ones();
-    Some((if below % 2 == 0 { 1.0 } else { -1.0 }, mask | 1 << b))
+    Some((
+        if below.is_multiple_of(2) { 1.0 } else { -1.0 },
+        mask | 1 << b,
+    ))
 }
 
 /// Apply a one-body operator Σ coefficient · a†_to a_from, given as a list of
@@ -158,6 +167,7 @@ fn pairing(l: u32, vector: &[(u32, f64)]) -> ShellVector {
     out.into_iter().filter(|(_, c)| c.abs() > NOISE).collect()
 }
 
+#[cfg(test)]
 fn norm(vector: &[(u32, f64)]) -> f64 {
     vector.iter().map(|(_, c)| c * c).sum::<f64>().sqrt()
 }
