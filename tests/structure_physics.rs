@@ -492,3 +492,33 @@ proptest! {
         }
     }
 }
+
+#[test]
+fn one_electron_replacement_mixing_of_1s2s_and_1s3s() {
+    // Configurations differing by one electron, 1s2s ~ 1s3s. For M_S = 1,
+    // ⟨1s↑2s↑|1/r₁₂|1s↑3s↑⟩ − ⟨1s↑2s↑|1/r₁₂|3s↑1s↑⟩ = D − X with the direct
+    // D = R⁰(1s2s,1s3s) and exchange X = R⁰(1s2s,3s1s) (c⁰(s,s) = 1); the singlet
+    // gets D + X (Slater–Condon rules, hand derivation; Condon & Shortley 1935, §6⁶).
+    // With both E_av = 0 and G⁰ = 0: ³S levels at ±(D − X), ¹S at ±(D + X).
+    let structure = build(&["1s.2s", "1s.3s"], &[(0, 1)]);
+    let names: Vec<String> = structure
+        .parameters()
+        .iter()
+        .filter(|p| matches!(p.scope, Scope::Interaction(..)))
+        .map(|p| p.radial.to_string())
+        .collect();
+    assert_eq!(names, vec!["R0(1s2s,1s3s)", "R0(1s2s,3s1s)"]);
+    let (d, x) = (500.0, 200.0);
+    let mut v = vec![0.0; structure.parameters().len()];
+    for (name, value) in [("R0(1s2s,1s3s)", d), ("R0(1s2s,3s1s)", x)] {
+        let id = ParameterId {
+            scope: Scope::Interaction(0, 1),
+            radial: name.parse().unwrap(),
+        };
+        v[structure.parameter_index(&id).unwrap()] = value;
+    }
+    let levels = by_j(&structure.levels(&v).unwrap());
+    let close = |a: &[f64], b: &[f64]| a.iter().zip(b).all(|(p, q)| (p - q).abs() < 1e-9);
+    assert!(close(&levels[&2], &[-(d - x), d - x]), "{levels:?}");
+    assert!(close(&levels[&0], &[-(d + x), d + x]), "{levels:?}");
+}

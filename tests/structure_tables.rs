@@ -467,3 +467,76 @@ fn intermediate_coupling_matches_every_row() {
     }
     assert_eq!(checked, 59);
 }
+
+#[test]
+fn lande_interval_rule_holds_for_every_term() {
+    // First-order spin–orbit energies of a term obey the Landé interval rule
+    // E(J) − E(J−1) = A·J (Landé 1923; common practice), with A as tabulated
+    // in spin_orbit.csv (`lande_A_coeff_zetaN`, sympy).
+    let table = include_str!("data/spin_orbit.csv");
+    let all = rows(table);
+    let mut checked = 0;
+    let mut configs: Vec<String> = all.iter().map(|(_, r)| r["config"].clone()).collect();
+    configs.dedup();
+    for name in configs {
+        let config: Configuration = configuration(&name).parse().unwrap();
+        let structure = LevelStructure::build(std::slice::from_ref(&config), &[]).unwrap();
+        let block = &structure.blocks()[0];
+        let terms: Vec<_> = all
+            .iter()
+            .filter(|(_, r)| {
+                r["config"] == name
+                    && r["block_size"] == "1"
+                    && !r["lande_A_coeff_zeta1"].is_empty()
+            })
+            .collect();
+        let mut by_term: BTreeMap<String, Vec<&BTreeMap<String, String>>> = BTreeMap::new();
+        for (_, r) in &terms {
+            by_term.entry(r["term"].clone()).or_default().push(r);
+        }
+        for (term, rows_of_term) in by_term {
+            for (zeta, a_column) in [
+                ("zeta1", "lande_A_coeff_zeta1"),
+                ("zeta2", "lande_A_coeff_zeta2"),
+            ] {
+                let first = rows_of_term[0];
+                if first[zeta].is_empty() || first[a_column].is_empty() {
+                    continue;
+                }
+                let id = zeta_parameter(&config, &first[zeta]);
+                let a = number(&first[a_column]);
+                // Our diagonal coefficient of ζ at each J of the term.
+                let mut by_j: Vec<(u32, f64)> = Vec::new();
+                for j_block in &block.j_blocks {
+                    let Some(x) = j_block
+                        .states
+                        .iter()
+                        .position(|&s| state_term(&structure, 0, s) == term)
+                    else {
+                        continue;
+                    };
+                    let c = structure.parameter_index(&id).map_or(0.0, |p| {
+                        j_block
+                            .coefficients
+                            .iter()
+                            .find(|(q, _)| *q == p)
+                            .map_or(0.0, |(_, m)| m[(x, x)])
+                    });
+                    by_j.push((j_block.two_j, c));
+                }
+                for pair in by_j.windows(2) {
+                    let (j_high, e_high) = pair[1];
+                    let (_, e_low) = pair[0];
+                    let want = a * j_high as f64 / 2.0;
+                    assert!(
+                        (e_high - e_low - want).abs() < 1e-12,
+                        "{name} {term}: {} vs {want}",
+                        e_high - e_low
+                    );
+                    checked += 1;
+                }
+            }
+        }
+    }
+    assert!(checked > 60, "{checked}");
+}

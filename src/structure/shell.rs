@@ -231,10 +231,15 @@ impl ShellTerms {
         let bits = 2 * (2 * l + 1);
         // Determinants grouped by (M_L, 2M_S).
         let mut blocks: BTreeMap<(i32, i32), Vec<u32>> = BTreeMap::new();
-        for mask in 0u32..(1u32 << bits) {
-            if mask.count_ones() != electrons {
-                continue;
-            }
+        // Every mask with `electrons` bits set among `bits`, in increasing order
+        // (Gosper's hack; Knuth, TAOCP 4A, §7.1.3).
+        let masks = std::iter::successors(Some((1u64 << electrons) - 1), |&x| {
+            let c = x & x.wrapping_neg();
+            let r = x + c;
+            let next = (((r ^ x) >> 2) / c) | r;
+            (next < 1u64 << bits).then_some(next)
+        });
+        for mask in masks.map(|m| m as u32) {
             let (mut ml, mut ms) = (0, 0);
             for b in 0..bits {
                 if mask >> b & 1 == 1 {
