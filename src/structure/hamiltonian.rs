@@ -526,3 +526,230 @@ pub(crate) fn build_block(
 fn phase(n: i64) -> f64 {
     if n.rem_euclid(2) == 0 { 1.0 } else { -1.0 }
 }
+
+/// A slow, plain reference: the whole Hamiltonian of one M_J in the determinant
+/// basis (Slater–Condon for Coulomb, ζ l·s = ζ[l_z s_z + ½(l₊s₋ + l₋s₊)] applied to
+/// each determinant, configuration averages from every determinant), diagonalised
+/// as is. The fast path (LS coupling, 6j spin–orbit, J blocks) must give the same
+/// eigenvalues.
+#[cfg(test)]
+mod reference {
+    use std::collections::HashMap;
+
+    use nalgebra::{DMatrix, SymmetricEigen};
+
+    use super::*;
+    use crate::structure::LevelStructure;
+
+    /// Every determinant of each configuration of block `b`, with its configuration.
+    fn determinants(structure: &LevelStructure, b: usize) -> Vec<(Determinant, usize)> {
+        let block = &structure.blocks()[b];
+        let layout = block.layout();
+        let mut out = Vec::new();
+        for &c in &block.configurations {
+            let mut partial = vec![Determinant::empty()];
+            for s in structure.configurations()[c].subshells() {
+                let Some(shell) = layout.shell_index(Orbital { n: s.n, l: s.l }) else {
+                    continue;
+                };
+                let offset = layout.offset(shell);
+                let size = s.capacity() as usize;
+                let mut next = Vec::new();
+                for d in &partial {
+                    for mask in 0u32..(1 << size) {
+                        if mask.count_ones() == s.occupancy {
+                            let mut e = *d;
+                            (0..size)
+                                .filter(|i| mask >> i & 1 == 1)
+                                .for_each(|i| e.insert(offset + i));
+                            next.push(e);
+                        }
+                    }
+                }
+                partial = next;
+            }
+            out.extend(partial.into_iter().map(|d| (d, c)));
+        }
+        out
+    }
+
+    fn reference_eigenvalues(
+        structure: &LevelStructure,
+        b: usize,
+        values: &[f64],
+        two_m: i32,
+    ) -> Vec<f64> {
+        let block = &structure.blocks()[b];
+        let layout = block.layout();
+        let orbitals = layout.orbitals().to_vec();
+        let ck = CkTable::new(orbitals.iter().map(|o| o.l).max().unwrap_or(0));
+        let value = |id: ParameterId| structure.parameter_index(&id).map_or(0.0, |p| values[p]);
+        let all = determinants(structure, b);
+        let interacting: HashSet<(usize, usize)> = structure
+            .parameters()
+            .iter()
+            .filter_map(|p| match p.scope {
+                Scope::Interaction(a, c) => Some((a, c)),
+                _ => None,
+            })
+            .collect();
+        // Configuration averages of the Coulomb diagonal, over all determinants.
+        let mut entries = Vec::new();
+        let mut sums: HashMap<usize, (f64, f64)> = HashMap::new();
+        for (d, c) in &all {
+            entries.clear();
+            slater_condon(layout, &ck, d, d, &mut entries);
+            let e: f64 = entries
+                .iter()
+                .filter_map(|&(key, x)| {
+                    parameter_of(key, &orbitals, *c, *c).map(|id| x * value(id))
+                })
+                .sum();
+            let s = sums.entry(*c).or_default();
+            s.0 += e;
+            s.1 += 1.0;
+        }
+        let dets: Vec<(Determinant, usize)> = all
+            .into_iter()
+            .filter(|(d, _)| 2 * layout.total_m_l(d) + layout.total_two_m_s(d) == two_m)
+            .collect();
+        let index: HashMap<Determinant, usize> =
+            dets.iter().enumerate().map(|(i, (d, _))| (*d, i)).collect();
+        let n = dets.len();
+        let mut h = DMatrix::<f64>::zeros(n, n);
+        for i in 0..n {
+            let (di, ci) = dets[i];
+            for j in 0..n {
+                let (dj, cj) = dets[j];
+                if ci != cj && !interacting.contains(&(ci.min(cj), ci.max(cj))) {
+                    continue;
+                }
+                entries.clear();
+                slater_condon(layout, &ck, &di, &dj, &mut entries);
+                for &(key, x) in &entries {
+                    if let Some(id) = parameter_of(key, &orbitals, ci, cj) {
+                        h[(i, j)] += x * value(id);
+                    }
+                }
+            }
+            let (sum, count) = sums[&ci];
+            h[(i, i)] += value(ParameterId {
+                scope: Scope::Configuration(ci),
+                radial: Radial::Average,
+            }) - sum / count;
+            // Spin–orbit of the open subshells of this configuration.
+            for a in di.occupied() {
+                let so = layout.spin_orbital(a);
+                let zeta = value(ParameterId {
+                    scope: Scope::Configuration(ci),
+                    radial: Radial::SpinOrbit {
+                        a: orbitals[so.shell],
+                    },
+                });
+                if zeta == 0.0 {
+                    continue;
+                }
+                let l = so.l as i32;
+                h[(i, i)] += zeta * so.m_l as f64 * so.two_m_s as f64 / 2.0;
+                // l₊s₋ takes (m, ↑) to (m+1, ↓); l₋s₊ takes (m, ↓) to (m−1, ↑).
+                let (target, factor) = if so.two_m_s > 0 {
+                    (
+                        so.m_l + 1,
+                        ((l * (l + 1) - so.m_l * (so.m_l + 1)) as f64).sqrt(),
+                    )
+                } else {
+                    (
+                        so.m_l - 1,
+                        ((l * (l + 1) - so.m_l * (so.m_l - 1)) as f64).sqrt(),
+                    )
+                };
+                if target.abs() > l {
+                    continue;
+                }
+                let to = layout.index(so.shell, target, -so.two_m_s);
+                if let Some((sign, e)) = di.excite(a, to)
+                    && let Some(&k) = index.get(&e)
+                {
+                    h[(k, i)] += 0.5 * zeta * factor * sign;
+                }
+            }
+        }
+        let mut eigen: Vec<f64> = SymmetricEigen::new(h).eigenvalues.iter().copied().collect();
+        eigen.sort_by(f64::total_cmp);
+        eigen
+    }
+
+    fn check(labels: &[&str], interactions: &[(usize, usize)], seed: u64) {
+        check_kinds(labels, interactions, seed, |_| true);
+    }
+
+    fn check_kinds(
+        labels: &[&str],
+        interactions: &[(usize, usize)],
+        seed: u64,
+        keep: impl Fn(&Radial) -> bool,
+    ) {
+        let configurations: Vec<Configuration> =
+            labels.iter().map(|l| l.parse().unwrap()).collect();
+        let structure = LevelStructure::build(&configurations, interactions).unwrap();
+        let mut state = seed;
+        let values: Vec<f64> = structure
+            .parameters()
+            .iter()
+            .map(|p| {
+                state = state
+                    .wrapping_mul(6364136223846793005)
+                    .wrapping_add(1442695040888963407);
+                let u = (state >> 11) as f64 / (1u64 << 53) as f64;
+                if !keep(&p.radial) {
+                    return 0.0;
+                }
+                match p.radial {
+                    Radial::Average => 20000.0 * u,
+                    Radial::SpinOrbit { .. } => 3000.0 * u,
+                    _ => 40000.0 * (u - 0.3),
+                }
+            })
+            .collect();
+        let levels = structure.levels(&values).unwrap();
+        for b in 0..structure.blocks().len() {
+            let two_m = (structure.blocks()[b].j_blocks[0].two_j % 2) as i32;
+            let mut fast: Vec<f64> = levels
+                .iter()
+                .filter(|l| l.block == b)
+                .flat_map(|l| {
+                    // A level of J appears once in every M_J block with |M_J| ≤ J.
+                    std::iter::repeat_n(l.energy_cm1, usize::from(l.j.twice as i32 >= two_m))
+                })
+                .collect();
+            fast.sort_by(f64::total_cmp);
+            let slow = reference_eigenvalues(&structure, b, &values, two_m);
+            assert_eq!(fast.len(), slow.len(), "{labels:?}");
+            for (f, s) in fast.iter().zip(&slow) {
+                assert!(
+                    (f - s).abs() < 1e-7 * s.abs().max(1e3),
+                    "{labels:?}: {f} vs {s}"
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn fast_levels_equal_the_plain_determinant_hamiltonian() {
+        check(&["3d2.4p"], &[], 1);
+        check(&["3d4.4s"], &[], 2);
+        check(&["2p2.3s.3p"], &[], 3);
+        check(&["3d2.4s", "3d.4s2", "3d3"], &[(0, 1), (0, 2), (1, 2)], 4);
+        check(
+            &["2p5.3s", "2p5.3d", "2p5.4s"],
+            &[(0, 1), (0, 2), (1, 2)],
+            5,
+        );
+        check(&["3s2.3d", "3s.3p2", "3s.3p.4s"], &[(0, 1)], 6);
+        check(&["4f2", "4f.5p"], &[], 7);
+        // Spin–orbit alone, between terms of different parents (6j route).
+        check_kinds(&["3d2.4p", "3d3"], &[], 8, |r| {
+            matches!(r, Radial::SpinOrbit { .. })
+        });
+    }
+}
