@@ -1,6 +1,10 @@
 //! Integration tests, built as one binary: one module per topic, shared helpers in
 //! `util`.
 
+mod angular_tables;
+mod levels_cli;
 mod radial;
+mod structure_physics;
+mod structure_tables;
 mod units;
 mod util;

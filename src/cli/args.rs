@@ -18,6 +18,8 @@ pub struct Cli {
 pub enum Command {
     /// Assign each line of a measured line list to candidate transitions, ranked.
     Assign(AssignArgs),
+    /// Compute every level of an ion's level model in intermediate coupling.
+    Levels(super::levels::LevelsArgs),
     /// Orbitals and radial integrals (E_av, F^k, G^k, R^k, ζ, ⟨r⟩) of configurations,
     /// from a self-consistent field.
     Radial(super::radial::RadialArgs),

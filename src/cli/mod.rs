@@ -6,6 +6,7 @@
 //! into place, so an interrupted run never leaves half a file.
 
 pub mod args;
+pub mod levels;
 pub mod output;
 pub mod radial;
 
@@ -38,6 +39,7 @@ pub fn run(cli: Cli) -> Result<(), CliError> {
         Command::Assign(_) => Err(CliError::Message(
             "the assign command is being built".into(),
         )),
+        Command::Levels(args) => levels::run(args),
         Command::Radial(args) => radial::run(args),
     }
 }
