@@ -20,6 +20,11 @@ pub enum Command {
     /// with the probability that each match is chance.
     #[command(long_about = super::assign::LONG_ABOUT)]
     Assign(super::assign::AssignArgs),
+    /// Compute every level of an ion's level model in intermediate coupling.
+    Levels(super::levels::LevelsArgs),
+    /// Orbitals and radial integrals (E_av, F^k, G^k, R^k, ζ, ⟨r⟩) of configurations,
+    /// from a self-consistent field.
+    Radial(super::radial::RadialArgs),
 }
 
 #[cfg(test)]

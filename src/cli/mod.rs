@@ -7,7 +7,9 @@
 
 pub mod args;
 pub mod assign;
+pub mod levels;
 pub mod output;
+pub mod radial;
 
 use std::io::{self, Write};
 use std::process::ExitCode;
@@ -36,6 +38,8 @@ pub fn main() -> ExitCode {
 pub fn run(cli: Cli) -> Result<(), CliError> {
     match cli.command {
         Command::Assign(args) => assign::run(args),
+        Command::Levels(args) => levels::run(args),
+        Command::Radial(args) => radial::run(args),
     }
 }
 
