@@ -19,15 +19,15 @@
 //!   `search.rs`): never by scanning every pair.
 //! - They are ranked by their deviation in combined standard uncertainties, |Δ|/u_c,
 //!   where a line that breaks a non-rigorous selection rule (intercombination,
-//!   L-forbidden, jump-forbidden) counts as if it lay further off:
+//!   L-forbidden, jump-forbidden, two-electron-jump) counts as if it lay further off:
 //!   √((Δ/u_c)² + n·p²) for n broken rules, p = [`MatchConfig::rule_penalty_sigma`]
 //!   (default 2; 0 ranks by deviation alone). Ties: lower chance probability
 //!   first, then prediction order.
 //! - Each gets a chance-coincidence probability from the local density of predicted
 //!   lines (see [`chance`]).
 //! - Flags ([`Flag`]): those of the predicted line (`intercombination`,
-//!   `L-forbidden`, `jump-forbidden`), `blend` when more than one candidate lies
-//!   within tolerance, `unassigned` when none does.
+//!   `L-forbidden`, `jump-forbidden`, `two-electron-jump`), `blend` when more than
+//!   one candidate lies within tolerance, `unassigned` when none does.
 //!
 //! ```
 //! use termsight::assign::{assign_lines, MatchConfig};
@@ -130,7 +130,8 @@ impl MatchConfig {
     }
 
     /// In ranking, a candidate that breaks `n` of the non-rigorous selection rules
-    /// (flags `intercombination`, `L-forbidden`, `jump-forbidden`) counts as if its
+    /// (flags `intercombination`, `L-forbidden`, `jump-forbidden`,
+    /// `two-electron-jump`) counts as if its
     /// deviation were √((Δ/u_c)² + n·p²) standard uncertainties, with p this
     /// penalty; p ≥ 0, and 0 ranks by deviation alone. Default: 2.
     ///
@@ -173,8 +174,10 @@ pub enum Flag {
     Intercombination,
     /// The predicted line breaks ΔL = 0, ±1 (not 0 ↔ 0) in LS coupling.
     LForbidden,
-    /// The configurations do not differ by one electron with Δl = ±1.
+    /// One electron moves between the configurations, with Δl ≠ ±1.
     JumpForbidden,
+    /// More than one electron changes subshell between the configurations.
+    TwoElectronJump,
     /// More than one candidate lies within tolerance of the observed line.
     Blend,
     /// No candidate lies within tolerance.
@@ -183,10 +186,11 @@ pub enum Flag {
 
 impl Flag {
     /// Every flag, in output order.
-    pub const ALL: [Flag; 5] = [
+    pub const ALL: [Flag; 6] = [
         Flag::Intercombination,
         Flag::LForbidden,
         Flag::JumpForbidden,
+        Flag::TwoElectronJump,
         Flag::Blend,
         Flag::Unassigned,
     ];
@@ -197,6 +201,7 @@ impl Flag {
             Flag::Intercombination => "intercombination",
             Flag::LForbidden => "L-forbidden",
             Flag::JumpForbidden => "jump-forbidden",
+            Flag::TwoElectronJump => "two-electron-jump",
             Flag::Blend => "blend",
             Flag::Unassigned => "unassigned",
         }
@@ -247,6 +252,9 @@ impl Candidate {
         }
         if line.flags.jump_forbidden {
             flags.push(Flag::JumpForbidden);
+        }
+        if line.flags.two_electron_jump {
+            flags.push(Flag::TwoElectronJump);
         }
         if blend {
             flags.push(Flag::Blend);

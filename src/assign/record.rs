@@ -33,7 +33,7 @@ use crate::units::{LengthUnit, Medium, Wavelength};
 /// | `deviation_sigma` | `deviation_cm1 / combined_uncertainty_cm1` |
 /// | `chance_probability` | probability that the match is a chance coincidence |
 /// | `selection_rules` | `LS` or `parity+J` |
-/// | `flags` | `;`-separated: `intercombination`, `L-forbidden`, `jump-forbidden`, `blend`, `unassigned` |
+/// | `flags` | `;`-separated: `intercombination`, `L-forbidden`, `jump-forbidden`, `two-electron-jump`, `blend`, `unassigned` |
 ///
 /// Terms are printed `2S+1 L` with `°` for odd parity (`3P°`), pair-coupling terms
 /// `2[3/2]°`. Numbers are printed with the fewest digits that read back to the same

@@ -97,7 +97,7 @@ pub(super) struct Hit {
     /// √(u_obs² + u_pred²), cm⁻¹, model uncertainty included.
     pub combined_uncertainty_cm1: f64,
     /// Non-rigorous selection rules the line breaks (intercombination, L-forbidden,
-    /// jump-forbidden), 0 to 3.
+    /// jump-forbidden or two-electron-jump), 0 to 3.
     pub broken_rules: u8,
 }
 
@@ -129,11 +129,7 @@ impl CandidateIndex {
             class.uncertainties.push(u);
             class.lines.push(index as u32);
             let flags = &line.flags;
-            class.broken_rules.push(
-                u8::from(flags.intercombination)
-                    + u8::from(flags.l_forbidden)
-                    + u8::from(flags.jump_forbidden),
-            );
+            class.broken_rules.push(flags.broken());
         }
         CandidateIndex {
             classes: classes.into_values().collect(),

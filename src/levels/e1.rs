@@ -63,11 +63,40 @@ pub struct TransitionFlags {
     /// |ΔL| > 1, or L = 0 ↔ 0, between two LS-labelled levels: forbidden in L in
     /// pure LS coupling (flag `L-forbidden`).
     pub l_forbidden: bool,
-    /// The configurations do not differ by one electron moving between subshells
-    /// with Δl = ±1 (flag `jump-forbidden`). Judged on the subshells written in the
-    /// labels, parent terms ignored; not judged when the two labels hold different
-    /// numbers of electrons (closed shells written in one and not the other).
+    /// One electron moves between the configurations, but not with Δl = ±1
+    /// (flag `jump-forbidden`).
     pub jump_forbidden: bool,
+    /// More than one electron changes subshell between the configurations (flag
+    /// `two-electron-jump`): the line is seen only through configuration mixing.
+    ///
+    /// Both jump flags are judged on the subshells written in the labels, parent
+    /// terms ignored; neither is judged when the two labels hold different numbers
+    /// of electrons (closed shells written in one and not the other).
+    pub two_electron_jump: bool,
+}
+
+impl TransitionFlags {
+    /// The output names of the rules broken, in a fixed order: `intercombination`,
+    /// `L-forbidden`, `jump-forbidden`, `two-electron-jump`.
+    pub fn names(&self) -> Vec<&'static str> {
+        [
+            (self.intercombination, "intercombination"),
+            (self.l_forbidden, "L-forbidden"),
+            (self.jump_forbidden, "jump-forbidden"),
+            (self.two_electron_jump, "two-electron-jump"),
+        ]
+        .into_iter()
+        .filter_map(|(set, name)| set.then_some(name))
+        .collect()
+    }
+
+    /// Number of rules broken, 0 to 3 (the two jump flags exclude each other).
+    pub fn broken(&self) -> u8 {
+        u8::from(self.intercombination)
+            + u8::from(self.l_forbidden)
+            + u8::from(self.jump_forbidden)
+            + u8::from(self.two_electron_jump)
+    }
 }
 
 /// Whether two levels may combine in an E1 line: opposite parity, and ΔJ = 0, ±1
@@ -81,8 +110,10 @@ pub fn is_e1_candidate(a: &LevelLabel, b: &LevelLabel) -> bool {
 /// order of the two levels does not matter). Call only for pairs that pass
 /// [`is_e1_candidate`].
 pub fn classify(a: &LevelLabel, b: &LevelLabel) -> (SelectionRules, TransitionFlags) {
+    let jump = electron_jump(a, b);
     let mut flags = TransitionFlags {
-        jump_forbidden: !one_electron_jump(a, b),
+        jump_forbidden: jump == Jump::OneOtherDl,
+        two_electron_jump: jump == Jump::Several,
         ..TransitionFlags::default()
     };
     let rules = match (&a.term, &b.term) {
@@ -96,9 +127,21 @@ pub fn classify(a: &LevelLabel, b: &LevelLabel) -> (SelectionRules, TransitionFl
     (rules, flags)
 }
 
-/// True when the configurations differ by one electron moved from a subshell of l
-/// to one of l ± 1, or when that cannot be judged (different electron counts).
-fn one_electron_jump(a: &LevelLabel, b: &LevelLabel) -> bool {
+/// How the electrons move between two configurations.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Jump {
+    /// One electron, Δl = ±1; or not judged (different electron counts).
+    Allowed,
+    /// One electron, Δl ≠ ±1.
+    OneOtherDl,
+    /// Several electrons (or none).
+    Several,
+}
+
+/// How the configurations of `a` and `b` differ: one electron moved from a subshell
+/// of l to one of l ± 1 (or not judged: different electron counts), one electron
+/// with another Δl, or more than one electron.
+fn electron_jump(a: &LevelLabel, b: &LevelLabel) -> Jump {
     let occupancy = |label: &LevelLabel| -> Vec<((u32, u32), i64)> {
         label
             .configuration
@@ -109,7 +152,7 @@ fn one_electron_jump(a: &LevelLabel, b: &LevelLabel) -> bool {
     let (occ_a, occ_b) = (occupancy(a), occupancy(b));
     let total = |occ: &[((u32, u32), i64)]| occ.iter().map(|(_, n)| n).sum::<i64>();
     if total(&occ_a) != total(&occ_b) {
-        return true;
+        return Jump::Allowed;
     }
     // Net change of occupancy per subshell, b minus a.
     let mut change: Vec<((u32, u32), i64)> = Vec::new();
@@ -124,8 +167,14 @@ fn one_electron_jump(a: &LevelLabel, b: &LevelLabel) -> bool {
     }
     change.retain(|(_, n)| *n != 0);
     match change.as_slice() {
-        [(s1, n1), (s2, n2)] if n1.abs() == 1 && *n1 == -n2 => s1.1.abs_diff(s2.1) == 1,
-        _ => false,
+        [(s1, n1), (s2, n2)] if n1.abs() == 1 && *n1 == -n2 => {
+            if s1.1.abs_diff(s2.1) == 1 {
+                Jump::Allowed
+            } else {
+                Jump::OneOtherDl
+            }
+        }
+        _ => Jump::Several,
     }
 }
 
@@ -180,7 +229,7 @@ mod tests {
         let (_, s0) = classify(&label("2s2.2p3 4S° 3/2"), &label("2s2.2p2.3s 4S 3/2"));
         assert!(s0.l_forbidden && !s0.intercombination && !s0.jump_forbidden);
         let (_, f) = classify(&label("1s.2s 3S 1"), &label("1s.4f 3F° 2"));
-        assert!(f.l_forbidden && f.jump_forbidden); // S–F, and s → f is Δl = 3
+        assert!(f.l_forbidden && f.jump_forbidden && !f.two_electron_jump); // s → f: Δl = 3
         let (_, pp) = classify(&label("2p2 3P 1"), &label("2p.3s 3P° 1"));
         assert!(!pp.l_forbidden && !pp.jump_forbidden); // ΔL = 0 is allowed; 2p → 3s
     }
@@ -194,7 +243,10 @@ mod tests {
             &label("5d10.6p2 3P 1"),
             &label("5d9.6s2.(2D<5/2>).6p 2[3/2]° 1"),
         );
-        assert!(f.jump_forbidden); // 6p2 → 5d9 6s2 6p: two electrons move
+        // 6p2 → 5d9 6s2 6p: two electrons move.
+        assert!(f.two_electron_jump && !f.jump_forbidden);
+        assert_eq!(f.names(), vec!["two-electron-jump"]);
+        assert_eq!(f.broken(), 1);
     }
 
     #[test]

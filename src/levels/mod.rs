@@ -8,7 +8,7 @@
 //! - [`EMBEDDED_TABLES`]: H I, He I, Ne I, Ar I, Cd I and Hg I from the NIST Atomic
 //!   Spectra Database (2014), see `reference-levels/SOURCES.md`.
 //! - [`e1`]: the E1 selection rules, which pairs of levels may combine and how a line
-//!   is flagged (intercombination, L-forbidden, jump-forbidden).
+//!   is flagged (intercombination, L-forbidden, jump-forbidden, two-electron-jump).
 //! - [`Predictions`], [`PredictedLine`]: predicted lines sorted by wavenumber, with
 //!   their levels, flags and the rules applied, from a table ([`predict_from_table`])
 //!   or, later, from a level model. The matcher ([`crate::assign`]) reads only these.

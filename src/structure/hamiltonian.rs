@@ -100,6 +100,26 @@ impl ParityBlock {
             .as_ref()
             .clone()
     }
+
+    /// Several LS states on the block's determinants, each given as (state, M_L,
+    /// 2M_S), sharing one memo of partial couplings (much faster than calling
+    /// [`Self::state_in_determinants`] for each). Each vector is sorted by
+    /// determinant.
+    pub fn states_in_determinants(
+        &self,
+        requests: &[(usize, i32, i32)],
+    ) -> Vec<Vec<(Determinant, f64)>> {
+        let mut cache = StateCache::default();
+        requests
+            .iter()
+            .map(|&(state, m_l, two_m_s)| {
+                self.coupler
+                    .state(&self.basis[state], m_l, two_m_s, &mut cache)
+                    .as_ref()
+                    .clone()
+            })
+            .collect()
+    }
 }
 
 /// A two-electron radial integral R^k(ab, cd) over block orbital numbers.

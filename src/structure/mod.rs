@@ -50,7 +50,7 @@ pub use basis::{BasisTerm, TermLabel};
 pub use hamiltonian::{JBlock, ParityBlock};
 pub use levels::{Component, Level, lande_g_ls};
 pub use orbital::{Determinant, MAX_SPIN_ORBITALS, Orbital, SpinOrbital, SpinOrbitalLayout};
-pub use parameter::{ParameterId, Radial, Scope, scope_name};
+pub use parameter::{DipoleIntegral, ParameterId, Radial, Scope, scope_name};
 pub use shell::{MAX_SHELL_L, ShellTerm, ShellTerms};
 
 use crate::notation::{Configuration, Parity};

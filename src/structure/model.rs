@@ -25,9 +25,16 @@
 //! [[interaction]]
 //! between = ["3s2", "3p2"]
 //! "R1(3s3s,3p3p)" = 15000.0
+//!
+//! # Radial dipole integrals ⟨a|r|b⟩ in bohr, for the predicted lines.
+//! [dipole]
+//! "P(3s,3p)" = -2.6
 //! ```
 //!
 //! - `species` (required): the spectrum, `Mg I`.
+//! - `model_uncertainty_cm1` (optional, ≥ 0): the standard uncertainty of the
+//!   model's level energies, cm⁻¹, for matching its predicted lines against
+//!   observed ones (`termsight assign --model`).
 //! - `[[configuration]]`, one per configuration: `label` (a configuration as
 //!   `notation` reads it; the same closed core in every one, or none), then one
 //!   entry per parameter of that configuration, named as in
@@ -36,6 +43,11 @@
 //! - `[[interaction]]` (optional), one per pair of configurations of the same
 //!   parity that mix: `between = [label, label]` and their R^k integrals,
 //!   `R1(3s3s,3p3p)`. Pairs without an interaction table do not mix.
+//! - `[dipole]` (optional): radial dipole integrals P(a,b) = ⟨a|r|b⟩ in bohr
+//!   ([`DipoleIntegral`]), `"P(3s,3p)" = -2.6`, one per pair of orbitals that an
+//!   E1 line moves an electron between (`termsight lines` says which it needs).
+//!   Signs follow radial functions positive near the nucleus; only relative signs
+//!   matter, and only where configuration mixing makes two integrals add.
 //! - A parameter is a number, or a table with `value`, `vary` (`"free"`, the
 //!   default, or `"fixed"`), `uncertainty` (≥ 0, optional), or `tie` (the name of
 //!   another parameter) with `ratio` (default 1): a tied parameter equals ratio ×
@@ -53,7 +65,8 @@ use std::io::BufRead;
 use toml::Spanned;
 use toml::de::{DeTable, DeValue};
 
-use super::parameter::{ParameterId, Radial, Scope, scope_name};
+use super::orbital::Orbital;
+use super::parameter::{DipoleIntegral, ParameterId, Radial, Scope, scope_name};
 use super::{LevelStructure, StructureError};
 use crate::location::Location;
 use crate::notation::{Configuration, Species};
@@ -98,6 +111,12 @@ pub struct LevelModel {
     pub interactions: Vec<(usize, usize)>,
     /// Every parameter, in the order of [`LevelStructure::parameters`].
     pub parameters: Vec<ModelParameter>,
+    /// Radial dipole integrals, bohr, in [`DipoleIntegral`] order (for line
+    /// strengths; empty when the file has no `[dipole]` table).
+    pub dipole: Vec<(DipoleIntegral, f64)>,
+    /// Standard uncertainty of the model's level energies, cm⁻¹, when the file
+    /// gives one (`model_uncertainty_cm1`).
+    pub model_uncertainty_cm1: Option<f64>,
 }
 
 impl LevelModel {
@@ -230,6 +249,8 @@ pub fn parse_model(text: &str, source: &str) -> Result<LoadedModel, ModelError> 
     })?;
     let document = document.get_ref();
     let mut species = None;
+    let mut model_uncertainty_cm1 = None;
+    let mut dipole_table = None;
     let mut config_tables = Vec::new();
     let mut interaction_tables = Vec::new();
     for (key, value) in document.iter() {
@@ -243,6 +264,29 @@ pub fn parse_model(text: &str, source: &str) -> Result<LoadedModel, ModelError> 
                     text.parse::<Species>()
                         .map_err(|e| lines.error(at, "species", e.to_string()))?,
                 );
+            }
+            "model_uncertainty_cm1" => {
+                let u = number(value.get_ref())
+                    .filter(|u| *u >= 0.0)
+                    .ok_or_else(|| {
+                        lines.error(
+                            at,
+                            "model_uncertainty_cm1",
+                            "expected a number of cm⁻¹ ≥ 0, the standard uncertainty of the \
+                             model's level energies",
+                        )
+                    })?;
+                model_uncertainty_cm1 = Some(u);
+            }
+            "dipole" => {
+                let DeValue::Table(table) = value.get_ref() else {
+                    return Err(lines.error(
+                        at,
+                        "dipole",
+                        "expected a [dipole] table of integrals such as \"P(3s,3p)\" = -2.6",
+                    ));
+                };
+                dipole_table = Some(table);
             }
             "configuration" | "interaction" => {
                 let name = key.get_ref().as_ref();
@@ -268,7 +312,8 @@ pub fn parse_model(text: &str, source: &str) -> Result<LoadedModel, ModelError> 
                 return Err(lines.error(
                     at,
                     other,
-                    "unknown key; a model has species, [[configuration]] and [[interaction]]",
+                    "unknown key; a model has species, model_uncertainty_cm1, \
+                     [[configuration]], [[interaction]] and [dipole]",
                 ));
             }
         }
@@ -558,15 +603,59 @@ pub fn parse_model(text: &str, source: &str) -> Result<LoadedModel, ModelError> 
             parameter.value = tied_value;
         }
     }
+    let dipole = match dipole_table {
+        Some(table) => read_dipole(&lines, table, &configurations)?,
+        None => Vec::new(),
+    };
     Ok(LoadedModel {
         model: LevelModel {
             species,
             configurations,
             interactions,
             parameters,
+            dipole,
+            model_uncertainty_cm1,
         },
         structure,
     })
+}
+
+/// The `[dipole]` table: `"P(a,b)" = bohr`, each integral once, each orbital one
+/// of the model's.
+fn read_dipole(
+    lines: &Lines<'_>,
+    table: &DeTable<'_>,
+    configurations: &[Configuration],
+) -> Result<Vec<(DipoleIntegral, f64)>, ModelError> {
+    let mut out: Vec<(DipoleIntegral, f64)> = Vec::new();
+    for (key, value) in table.iter() {
+        let name = key.get_ref().as_ref();
+        let at = key.span().start;
+        let field = format!("dipole.{name}");
+        let integral: DipoleIntegral = name.parse().map_err(|m: String| lines.error(at, &field, m))?;
+        for orbital in [integral.a, integral.b] {
+            let known = configurations.iter().any(|c| {
+                c.subshells()
+                    .any(|s| Orbital { n: s.n, l: s.l } == orbital)
+            });
+            if !known {
+                return Err(lines.error(
+                    at,
+                    &field,
+                    format!("no configuration of the model has a {orbital} orbital"),
+                ));
+            }
+        }
+        let v = number(value.get_ref()).ok_or_else(|| {
+            lines.error(at, &field, "not a number; give ⟨a|r|b⟩ in bohr")
+        })?;
+        if out.iter().any(|(i, _)| *i == integral) {
+            return Err(lines.error(at, &field, format!("{integral} is given twice")));
+        }
+        out.push((integral, v));
+    }
+    out.sort_by(|a, b| a.0.cmp(&b.0));
+    Ok(out)
 }
 
 /// A required string key of a table: its value and the offset of the key.
@@ -738,6 +827,9 @@ fn resolve_tie(
 pub fn write_model(model: &LevelModel) -> String {
     let mut out = String::new();
     let _ = writeln!(out, "species = \"{}\"", model.species);
+    if let Some(u) = model.model_uncertainty_cm1 {
+        let _ = writeln!(out, "model_uncertainty_cm1 = {}", float(u));
+    }
     let write_parameter = |out: &mut String, p: &ModelParameter| {
         let name = p.id.radial.to_string();
         let key = if name == "Eav" {
@@ -791,6 +883,12 @@ pub fn write_model(model: &LevelModel) -> String {
             write_parameter(&mut out, p);
         }
     }
+    if !model.dipole.is_empty() {
+        let _ = writeln!(out, "\n[dipole]");
+        for (integral, value) in &model.dipole {
+            let _ = writeln!(out, "\"{integral}\" = {}", float(*value));
+        }
+    }
     out
 }
 
@@ -831,6 +929,32 @@ Eav = 60000
 between = ["3s2", "3p2"]
 "R1(3s3s,3p3p)" = 15000.0
 "#;
+
+    #[test]
+    fn reads_dipole_integrals_and_the_model_uncertainty() {
+        let text = MG.replace(
+            "species = \"Mg I\"\n",
+            "species = \"Mg I\"\nmodel_uncertainty_cm1 = 120\n",
+        ) + "\n[dipole]\n\"P(3p,3s)\" = -2.6\n";
+        let model = parse_model(&text, "mg.toml").unwrap().model;
+        assert_eq!(model.model_uncertainty_cm1, Some(120.0));
+        assert_eq!(model.dipole.len(), 1);
+        assert_eq!(model.dipole[0].0.to_string(), "P(3s,3p)");
+        assert_eq!(model.dipole[0].1, -2.6);
+        let again = parse_model(&write_model(&model), "again.toml").unwrap();
+        assert_eq!(again.model, model);
+        let dipole = |line: &str| error(&(MG.to_string() + "\n[dipole]\n" + line + "\n"));
+        let e = dipole("\"P(3s,3d)\" = 1.0");
+        assert!(e.starts_with("m.toml:26: key 'dipole.P(3s,3d)'"), "{e}");
+        let e = dipole("\"P(3s,4p)\" = 1.0");
+        assert!(e.contains("no configuration of the model has a 4p orbital"), "{e}");
+        let e = dipole("\"P(3s,3p)\" = \"long\"");
+        assert!(e.contains("not a number"), "{e}");
+        let e = dipole("\"P(3s,3p)\" = 1.0\n\"P(3p,3s)\" = 1.0");
+        assert!(e.starts_with("m.toml:27:") && e.contains("given twice"), "{e}");
+        let e = error(&MG.replace("species = \"Mg I\"\n", "species = \"Mg I\"\nmodel_uncertainty_cm1 = -1\n"));
+        assert!(e.starts_with("m.toml:3: key 'model_uncertainty_cm1'"), "{e}");
+    }
 
     fn error(text: &str) -> String {
         parse_model(text, "m.toml").unwrap_err().to_string()

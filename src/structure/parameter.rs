@@ -212,6 +212,63 @@ impl FromStr for Radial {
     }
 }
 
+/// A radial dipole integral P(a,b) = ⟨a|r|b⟩ = ∫ P_a(r) r P_b(r) dr, in bohr, between
+/// orbitals whose l differ by one: the radial part of every one-electron E1 matrix
+/// element a → b. Named `P(3s,3p)` in model files; P(3s,3p) = P(3p,3s) (real
+/// radial functions), so the orbitals are kept in (n, l) order.
+///
+/// Sign: the radial functions P_nl are taken positive near the nucleus, as the
+/// radial module makes them; for hydrogen ⟨1s|r|2p⟩ = +1.290 and ⟨2s|r|2p⟩ = −5.196
+/// bohr (Bethe & Salpeter 1957, table 13). A line strength is a square, so the sign
+/// of one integral never matters; only when configuration mixing lets two integrals
+/// add in one line does their relative sign change the result.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
+pub struct DipoleIntegral {
+    /// The lower orbital in (n, l) order.
+    pub a: Orbital,
+    /// The higher orbital in (n, l) order.
+    pub b: Orbital,
+}
+
+impl DipoleIntegral {
+    /// P(a,b) with the orbitals put in order; `None` unless their l differ by one.
+    pub fn new(a: Orbital, b: Orbital) -> Option<DipoleIntegral> {
+        (a.l.abs_diff(b.l) == 1).then(|| DipoleIntegral {
+            a: a.min(b),
+            b: a.max(b),
+        })
+    }
+}
+
+impl fmt::Display for DipoleIntegral {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(f, "P({},{})", self.a, self.b)
+    }
+}
+
+impl FromStr for DipoleIntegral {
+    type Err = String;
+
+    /// Read `P(3s,3p)` (or `P(3p,3s)`).
+    fn from_str(s: &str) -> Result<Self, Self::Err> {
+        let bad = || {
+            format!(
+                "'{s}' is not a dipole integral; expected P(a,b) with orbitals whose l \
+                 differ by one, such as P(3s,3p)"
+            )
+        };
+        let inner = s
+            .trim()
+            .strip_prefix("P(")
+            .and_then(|rest| rest.strip_suffix(')'))
+            .ok_or_else(bad)?;
+        let (a, b) = inner.split_once(',').ok_or_else(bad)?;
+        let a: Orbital = a.trim().parse().map_err(|_| bad())?;
+        let b: Orbital = b.trim().parse().map_err(|_| bad())?;
+        DipoleIntegral::new(a, b).ok_or_else(bad)
+    }
+}
+
 /// Where a parameter belongs.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
 pub enum Scope {
@@ -299,5 +356,16 @@ mod tests {
         let r = Radial::interaction(2, o("3d"), o("4s"), o("3d"), o("3d"));
         assert_eq!(r.to_string(), "R2(3d3d,3d4s)");
         assert!(!r.same_integral(&Radial::interaction(2, o("3d"), o("3d"), o("4s"), o("4s"))));
+    }
+
+    #[test]
+    fn dipole_integral_names() {
+        // ⟨a|r|b⟩ = ⟨b|r|a⟩ for real radial functions: one name for both orders.
+        let p: DipoleIntegral = "P(3p,3s)".parse().unwrap();
+        assert_eq!(p.to_string(), "P(3s,3p)");
+        assert_eq!(" P(3s, 3p) ".parse::<DipoleIntegral>().unwrap(), p);
+        for bad in ["P(3s,4s)", "P(3s,3d)", "P(3s)", "R(3s,3p)", "P(3s,3x)"] {
+            assert!(bad.parse::<DipoleIntegral>().is_err(), "{bad}");
+        }
     }
 }

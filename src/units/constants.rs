@@ -27,6 +27,15 @@ pub const SPEED_OF_LIGHT_M_S: f64 = 299_792_458.0;
 /// Rydberg constant for infinite nuclear mass, R∞ = 109737.31568160 cm⁻¹ (CODATA 2018).
 pub const RYDBERG_INFINITY_CM1: f64 = 109_737.315_681_60;
 
+/// Planck constant h = 6.62607015e-34 J s (exact since the 2019 SI; CODATA 2018).
+pub const PLANCK_CONSTANT_J_S: f64 = 6.626_070_15e-34;
+
+/// Elementary charge e = 1.602176634e-19 C (exact since the 2019 SI; CODATA 2018).
+pub const ELEMENTARY_CHARGE_C: f64 = 1.602_176_634e-19;
+
+/// Electron mass m_e = 9.1093837015e-31 kg (CODATA 2018).
+pub const ELECTRON_MASS_KG: f64 = 9.109_383_701_5e-31;
+
 #[cfg(test)]
 mod tests {
     use super::*;
