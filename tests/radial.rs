@@ -59,7 +59,7 @@ fn json_output_is_one_document() {
     let integrals = json["integrals"].as_array().unwrap();
     // Li 2s → 2p: one dipole integral, |⟨2s|r|2p⟩| ≈ 4.7 bohr (the 2s–2p radial
     // integral of lithium, common practice, no source; a loose check).
-    let dipole = integrals.iter().find(|i| i["name"] == "r(2s,2p)").unwrap();
+    let dipole = integrals.iter().find(|i| i["name"] == "P(2s,2p)").unwrap();
     let value = dipole["value"].as_f64().unwrap().abs();
     assert!((4.0..5.5).contains(&value), "{value}");
 }

@@ -22,6 +22,9 @@ pub enum Command {
     Assign(super::assign::AssignArgs),
     /// Compute every level of an ion's level model in intermediate coupling.
     Levels(super::levels::LevelsArgs),
+    /// Predict the E1 lines of a level model: wavelengths, line strengths, gf, A
+    /// and flags.
+    Lines(super::lines::LinesArgs),
     /// Orbitals and radial integrals (E_av, F^k, G^k, R^k, ζ, ⟨r⟩) of configurations,
     /// from a self-consistent field.
     Radial(super::radial::RadialArgs),

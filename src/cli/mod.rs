@@ -8,6 +8,7 @@
 pub mod args;
 pub mod assign;
 pub mod levels;
+pub mod lines;
 pub mod output;
 pub mod radial;
 
@@ -39,6 +40,7 @@ pub fn run(cli: Cli) -> Result<(), CliError> {
     match cli.command {
         Command::Assign(args) => assign::run(args),
         Command::Levels(args) => levels::run(args),
+        Command::Lines(args) => lines::run(args),
         Command::Radial(args) => radial::run(args),
     }
 }

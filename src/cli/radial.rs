@@ -600,7 +600,7 @@ mod tests {
         let report = compute(&request, &mut Progress::new(true)).unwrap();
         let table = render_table(&report);
         assert!(table.contains("He I (Z = 2)"));
-        assert!(table.contains("G0(1s,2s)") && table.contains("r(2s,2p)"));
+        assert!(table.contains("G0(1s,2s)") && table.contains("P(2s,2p)"));
         let json: serde_json::Value = serde_json::from_str(&render_json(&report).unwrap()).unwrap();
         assert_eq!(json["configurations"][0]["configuration"], "1s.2s");
         assert_eq!(json["integrals"][1]["kind"], "exchange");

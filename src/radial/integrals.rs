@@ -8,7 +8,7 @@
 //! | G^k | `G1(3s,3p)` | two open subshells of one configuration, every allowed k |
 //! | ζ | `zeta(3p)` | open subshells with l > 0 |
 //! | R^k | `R1(3s3s,3p3p)` | two configurations of one parity that differ by one or two electrons |
-//! | ⟨a\|r\|b⟩ | `r(3s,3p)` | two configurations of opposite parity that differ by one electron (bohr) |
+//! | ⟨a\|r\|b⟩ | `P(3s,3p)` | two configurations of opposite parity that differ by one electron (bohr; the `[dipole]` name of a model file) |
 //!
 //! A subshell is open when it is not full. F^k(a,a) is listed for l^w with
 //! 2 ≤ w ≤ 4l (only those have terms that it separates). For R^k between
@@ -328,7 +328,7 @@ pub fn radial_integrals(
                     }
                     let value = grid.integrate_product_power(&p_left(a), &p_right(c), 1);
                     push(
-                        format!("r({},{})", a.orbital(), c.orbital()),
+                        format!("P({},{})", a.orbital(), c.orbital()),
                         IntegralKind::Dipole {
                             a: a.orbital(),
                             b: c.orbital(),
@@ -522,7 +522,7 @@ mod tests {
             &ScaleFactors::default(),
         )
         .unwrap();
-        let dipole = list.iter().find(|i| i.name == "r(1s,2p)").unwrap();
+        let dipole = list.iter().find(|i| i.name == "P(1s,2p)").unwrap();
         let exact = 128.0 * 6f64.sqrt() / 243.0;
         assert!((dipole.value - exact).abs() < 1e-9, "{}", dipole.value);
         assert_eq!(dipole.other_configuration, Some(1));
@@ -543,8 +543,8 @@ mod tests {
             "G1(3s,3p)",
             "zeta(3p)",
             "F2(3p)",
-            "r(3s,3p)",
-            "r(3s,3p)",
+            "P(3s,3p)",
+            "P(3s,3p)",
             "R1(3s3s,3p3p)",
         ] {
             assert!(

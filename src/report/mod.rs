@@ -8,10 +8,14 @@
 //! [`assign_table`] gives the terminal table, [`assign_csv`] the CSV (the format of
 //! [`crate::assign::ASSIGN_COLUMNS`], which [`crate::assign::read_assignments`] reads
 //! back) and [`assign_json`] the JSON.
+//!
+//! For `termsight lines`, a [`LinesReport`] holds the selected lines of a level
+//! model; [`lines_table`], [`lines_csv`] and [`lines_json`] write it.
 
 mod assign_csv;
 mod assign_json;
 mod assign_table;
+mod model_lines;
 
 use serde::Serialize;
 
@@ -23,6 +27,10 @@ use crate::units::{AirFormula, Medium};
 pub use assign_csv::assign_csv;
 pub use assign_json::assign_json;
 pub use assign_table::{TableOptions, assign_table};
+pub use model_lines::{
+    DipoleValue, LINE_COLUMNS, LineRow, LineSelection, LinesReport, lines_csv, lines_json,
+    lines_table,
+};
 
 /// What the outputs say about the measured line list.
 #[derive(Debug, Clone, PartialEq, Serialize)]
