@@ -28,6 +28,7 @@ use crate::units::{LengthUnit, Medium, Wavelength};
 /// | `upper_configuration`, `upper_term`, `upper_J`, `upper_energy_cm1` | upper level |
 /// | `predicted_wavenumber_cm1`, `predicted_uncertainty_cm1` | the prediction (its uncertainty includes any model uncertainty) |
 /// | `predicted_in_given_unit` | the prediction in the unit and medium of `given_*` |
+/// | `predicted_strength` | the predicted relative strength: gf for lines of a level model, blank for Ritz predictions from level tables |
 /// | `deviation_cm1` | observed − predicted |
 /// | `combined_uncertainty_cm1` | √(observed² + predicted²) |
 /// | `deviation_sigma` | `deviation_cm1 / combined_uncertainty_cm1` |
@@ -38,7 +39,7 @@ use crate::units::{LengthUnit, Medium, Wavelength};
 /// Terms are printed `2S+1 L` with `°` for odd parity (`3P°`), pair-coupling terms
 /// `2[3/2]°`. Numbers are printed with the fewest digits that read back to the same
 /// binary value.
-pub const ASSIGN_COLUMNS: [&str; 26] = [
+pub const ASSIGN_COLUMNS: [&str; 27] = [
     "line",
     "given_value",
     "given_unit",
@@ -59,6 +60,7 @@ pub const ASSIGN_COLUMNS: [&str; 26] = [
     "predicted_wavenumber_cm1",
     "predicted_uncertainty_cm1",
     "predicted_in_given_unit",
+    "predicted_strength",
     "deviation_cm1",
     "combined_uncertainty_cm1",
     "deviation_sigma",
@@ -133,6 +135,9 @@ pub struct CandidateRecord {
     /// The prediction in the unit and medium the observed line was given in (`None`
     /// when it cannot be expressed there, e.g. an air wavelength below 185 nm).
     pub predicted_in_given_unit: Option<f64>,
+    /// The predicted relative strength ([`crate::levels::PredictedLine::relative_strength`]:
+    /// gf for the lines of a level model), `None` when the predictions have none.
+    pub predicted_strength: Option<f64>,
     /// Observed − predicted, cm⁻¹.
     pub deviation_cm1: f64,
     /// Combined standard uncertainty, cm⁻¹.
@@ -200,6 +205,7 @@ pub fn records(
                         &observed.given,
                         list.air_formula,
                     ),
+                    predicted_strength: line.relative_strength,
                     deviation_cm1: candidate.deviation_cm1,
                     combined_uncertainty_cm1: candidate.combined_uncertainty_cm1,
                     deviation_sigma: candidate.deviation_sigma,
@@ -274,13 +280,14 @@ impl AssignmentRecord {
                 number(c.predicted_wavenumber_cm1),
                 number(c.predicted_uncertainty_cm1),
                 optional(c.predicted_in_given_unit),
+                optional(c.predicted_strength),
                 number(c.deviation_cm1),
                 number(c.combined_uncertainty_cm1),
                 number(c.deviation_sigma),
                 number(c.chance_probability),
                 c.selection_rules.name().to_string(),
             ]),
-            None => fields.extend(std::iter::repeat_n(String::new(), 17)),
+            None => fields.extend(std::iter::repeat_n(String::new(), 18)),
         }
         fields.push(
             self.flags
@@ -618,6 +625,7 @@ impl Fields<'_> {
             predicted_wavenumber_cm1: self.number("predicted_wavenumber_cm1")?,
             predicted_uncertainty_cm1: self.number("predicted_uncertainty_cm1")?,
             predicted_in_given_unit: self.optional_number("predicted_in_given_unit")?,
+            predicted_strength: self.optional_number("predicted_strength")?,
             deviation_cm1,
             combined_uncertainty_cm1: combined,
             deviation_sigma,

@@ -17,16 +17,18 @@ use crate::notation::Species;
 use crate::report::{
     AssignReport, InputSummary, TableOptions, assign_csv, assign_json, assign_table,
 };
+use crate::transitions::model_predictions;
 use crate::units::{AirFormula, Medium};
 
 /// Assign each measured line to the transitions that could have made it, ranked,
 /// with the probability that each match is a chance coincidence.
 ///
 /// Predicted lines are the E1 lines between the levels of the compiled reference
-/// tables (NIST ASD 2014: H I, He I, Ne I, Ar I, Cd I, Hg I), or of your own level
-/// tables (--levels). A prediction is a candidate when it lies within K combined
-/// standard uncertainties of the observed line (--within). Every output says how the
-/// input was read (medium, air formula) and which selection rules were applied.
+/// tables (NIST ASD 2014: H I, He I, Ne I, Ar I, Cd I, Hg I), of your own level
+/// tables (--levels), or of a level model (--model). A prediction is a candidate
+/// when it lies within K combined standard uncertainties of the observed line
+/// (--within). Every output says how the input was read (medium, air formula) and
+/// which selection rules were applied.
 #[derive(Debug, clap::Args)]
 #[command(after_help = AFTER_HELP)]
 pub struct AssignArgs {
@@ -49,13 +51,26 @@ pub struct AssignArgs {
     #[arg(long = "levels", value_name = "FILE")]
     pub levels: Vec<PathBuf>,
 
+    /// Predict lines from the level model in FILE (TOML, with a [dipole] table; see
+    /// `termsight lines`), with their gf values; repeat for several species. Without
+    /// --species or --levels, only the models' lines are matched.
+    #[arg(long = "model", value_name = "FILE")]
+    pub model: Vec<PathBuf>,
+
+    /// Standard uncertainty of the model's level energies, cm⁻¹, combined in
+    /// quadrature with each observed line's uncertainty when matching its lines.
+    /// [default: model_uncertainty_cm1 of the model file]
+    #[arg(long = "model-uncertainty", value_name = "CM1")]
+    pub model_uncertainty: Option<f64>,
+
     /// Accept a candidate when it lies within K combined standard uncertainties of the
     /// observed line.
     #[arg(short = 'k', long = "within", value_name = "K", default_value_t = MatchConfig::DEFAULT_TOLERANCE_SIGMA)]
     pub within: f64,
 
     /// In ranking, count a line that breaks an LS or one-electron selection rule
-    /// (intercombination, L-forbidden, jump-forbidden) as if it lay this many
+    /// (intercombination, L-forbidden, jump-forbidden, two-electron-jump) as if it
+    /// lay this many
     /// standard uncertainties further off; 0 ranks by deviation alone.
     #[arg(long = "rule-penalty", value_name = "SIGMAS", default_value_t = MatchConfig::DEFAULT_RULE_PENALTY_SIGMA)]
     pub rule_penalty: f64,
@@ -105,8 +120,9 @@ pub(crate) const LONG_ABOUT: &str = "Assign each measured line to the transition
 have made it, ranked, with the probability that each match is a chance coincidence.
 
 Predicted lines are the electric-dipole lines between the levels of the compiled reference \
-tables (NIST ASD 2014: H I, He I, Ne I, Ar I, Cd I, Hg I), or of your own level tables \
-(--levels). A prediction is a candidate when it lies within K combined standard \
+tables (NIST ASD 2014: H I, He I, Ne I, Ar I, Cd I, Hg I), of your own level tables \
+(--levels), or of a level model (--model, with predicted gf values shown beside each \
+candidate). A prediction is a candidate when it lies within K combined standard \
 uncertainties of the observed line (--within). Every output says how the input was read \
 (medium, air formula) and which selection rules were applied.";
 
@@ -116,9 +132,10 @@ Examples:
   termsight assign lines.csv --species \"He I\" --species \"Ne I\" --all
   termsight assign scan.txt --uncertainty 0.002nm --format csv -o assigned.csv
   termsight assign lines.csv --levels my-levels.csv --within 4
+  termsight assign lines.csv --model ca-model.toml --model-uncertainty 150 --species \"He I\"
 
 Flags in the output: intercombination (ΔS ≠ 0), L-forbidden (ΔL > 1 or L 0–0),
-jump-forbidden (not a one-electron jump with Δl = ±1), blend (more than one
+jump-forbidden (one electron with Δl ≠ ±1), two-electron-jump, blend (more than one
 candidate), unassigned (none). LS rules are applied only where both levels carry LS
 labels; pair-coupled labels (Ne I, Ar I) get the parity and J rules only.";
 
@@ -169,7 +186,12 @@ const PROGRESS_ABOVE: usize = 200_000;
 /// Run `termsight assign`.
 pub fn run(args: AssignArgs) -> Result<(), CliError> {
     let config = match_config(&args)?;
-    let predictions = predictions(&args.levels, &args.species)?;
+    let predictions = predictions(
+        &args.levels,
+        &args.species,
+        &args.model,
+        args.model_uncertainty,
+    )?;
     let list = read_lines(&args)?;
     report_skipped(&list);
 
@@ -232,8 +254,14 @@ fn match_config(args: &AssignArgs) -> Result<MatchConfig, CliError> {
 }
 
 /// The predictions: from the user's level tables if any, else from the compiled
-/// ones; restricted to the species asked for.
-fn predictions(level_files: &[PathBuf], species_names: &[String]) -> Result<Predictions, CliError> {
+/// ones (none when only models are given); restricted to the species asked for;
+/// and the lines of every model.
+fn predictions(
+    level_files: &[PathBuf],
+    species_names: &[String],
+    models: &[PathBuf],
+    model_uncertainty: Option<f64>,
+) -> Result<Predictions, CliError> {
     let wanted: Vec<Species> = species_names
         .iter()
         .map(|name| {
@@ -242,7 +270,11 @@ fn predictions(level_files: &[PathBuf], species_names: &[String]) -> Result<Pred
         })
         .collect::<Result<_, _>>()?;
     let tables: Vec<LevelTable> = if level_files.is_empty() {
-        compiled_tables(&wanted)?
+        if models.is_empty() || !wanted.is_empty() {
+            compiled_tables(&wanted)?
+        } else {
+            Vec::new()
+        }
     } else {
         let tables = level_files
             .iter()
@@ -261,18 +293,44 @@ fn predictions(level_files: &[PathBuf], species_names: &[String]) -> Result<Pred
             .filter(|t| !t.levels.is_empty())
             .collect()
     };
-    let sets = tables
+    let mut sets = tables
         .iter()
         .map(|table| {
             predict_from_table(table)
                 .map_err(|e| CliError::Message(format!("{}: {e}", table.source)))
         })
         .collect::<Result<Vec<_>, _>>()?;
+    for path in models {
+        sets.push(model_predictions_from(path, model_uncertainty)?);
+    }
     Predictions::combine(sets).map_err(|e| {
         CliError::Message(format!(
-            "{e}; each species may come from one level table only"
+            "{e}; each species may come from one level table or model only"
         ))
     })
+}
+
+/// The predictions of the level model in `path`, with the model uncertainty from
+/// the flag or else from the file.
+fn model_predictions_from(path: &Path, flag: Option<f64>) -> Result<Predictions, CliError> {
+    if let Some(u) = flag
+        && !(u.is_finite() && u >= 0.0)
+    {
+        return Err(CliError::Message(format!(
+            "--model-uncertainty: give a number of cm⁻¹ ≥ 0, not {u}"
+        )));
+    }
+    let name = path.display().to_string();
+    let lines = super::lines::model_lines(path)?;
+    let model = &lines.loaded.model;
+    let uncertainty = flag.or(model.model_uncertainty_cm1).ok_or_else(|| {
+        CliError::Message(format!(
+            "{name}: the model gives no model_uncertainty_cm1; give the uncertainty of its \
+             level energies with --model-uncertainty CM1"
+        ))
+    })?;
+    model_predictions(model.species, &lines.spectrum, &name, uncertainty)
+        .map_err(|e| CliError::Message(format!("{name}: {e}")))
 }
 
 fn compiled_tables(wanted: &[Species]) -> Result<Vec<LevelTable>, CliError> {
@@ -369,10 +427,10 @@ mod tests {
 
     #[test]
     fn unknown_species_names_the_compiled_ones() {
-        let e = predictions(&[], &["Fe II".to_string()]).unwrap_err();
+        let e = predictions(&[], &["Fe II".to_string()], &[], None).unwrap_err();
         assert!(e.to_string().contains("no compiled table of Fe II"), "{e}");
         assert!(e.to_string().contains("He I, Ne I"), "{e}");
-        let e = predictions(&[], &["Xx I".to_string()]).unwrap_err();
+        let e = predictions(&[], &["Xx I".to_string()], &[], None).unwrap_err();
         assert!(
             e.to_string().starts_with("--species: cannot read species"),
             "{e}"
@@ -381,9 +439,9 @@ mod tests {
 
     #[test]
     fn default_is_every_compiled_table() {
-        let p = predictions(&[], &[]).unwrap();
+        let p = predictions(&[], &[], &[], None).unwrap();
         assert_eq!(p.species().len(), EMBEDDED_TABLES.len());
-        let p = predictions(&[], &["He I".into(), "Ne I".into()]).unwrap();
+        let p = predictions(&[], &["He I".into(), "Ne I".into()], &[], None).unwrap();
         let names: Vec<String> = p.species().iter().map(|s| s.species.to_string()).collect();
         assert_eq!(names, vec!["He I", "Ne I"]);
     }

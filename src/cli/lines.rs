@@ -102,7 +102,8 @@ pub(crate) fn model_lines(path: &Path) -> Result<ModelLines, CliError> {
     let loaded =
         read_model(BufReader::new(file), &name).map_err(|e| CliError::Message(e.to_string()))?;
     let structure = &loaded.structure;
-    let message = |e: crate::transitions::TransitionError| CliError::Message(format!("{name}: {e}"));
+    let message =
+        |e: crate::transitions::TransitionError| CliError::Message(format!("{name}: {e}"));
     let mut report = |p: DipoleProgress| {
         if p.total > PROGRESS_ABOVE && (p.done % (p.total / 10).max(1) == 0) {
             let _ = writeln!(
@@ -128,7 +129,8 @@ pub(crate) fn model_lines(path: &Path) -> Result<ModelLines, CliError> {
         .values_from(structure, &loaded.model.dipole)
         .map_err(message)?;
     let values = loaded.model.values_for(structure);
-    let spectrum = model_spectrum(structure, &operator, &values, &dipole_values).map_err(message)?;
+    let spectrum =
+        model_spectrum(structure, &operator, &values, &dipole_values).map_err(message)?;
     let dipole = operator
         .integrals()
         .iter()

@@ -42,7 +42,13 @@ pub fn assign_table(report: &AssignReport<'_>, options: &TableOptions) -> String
         Some(unit) => (format!("observed\n{unit}"), format!("predicted\n{unit}")),
         None => ("observed".to_string(), "predicted".to_string()),
     };
-    table.set_header(vec![
+    // A column of predicted strengths (gf of a level model) when any candidate has one.
+    let strengths = report.records.iter().any(|r| {
+        r.candidate
+            .as_ref()
+            .is_some_and(|c| c.predicted_strength.is_some())
+    });
+    let mut header = vec![
         "line".to_string(),
         observed_header,
         predicted_header,
@@ -54,7 +60,11 @@ pub fn assign_table(report: &AssignReport<'_>, options: &TableOptions) -> String
         "P\nchance".to_string(),
         "alt".to_string(),
         "flags".to_string(),
-    ]);
+    ];
+    if strengths {
+        header.insert(STRENGTH_COLUMN, "gf\n(model)".to_string());
+    }
+    table.set_header(header);
     for (index, record) in report.records.iter().enumerate() {
         let first = record.rank.is_none_or(|r| r == 1);
         if !first && !options.all {
@@ -66,30 +76,31 @@ pub fn assign_table(report: &AssignReport<'_>, options: &TableOptions) -> String
             .skip(index + 1)
             .take_while(|r| r.line == record.line && r.rank.is_some())
             .count();
-        table.add_row(row(
-            record,
-            first,
-            alternatives,
-            options.all,
-            unit.is_some(),
-        ));
+        let mut cells = row(record, first, alternatives, options.all, unit.is_some());
+        if strengths {
+            let gf = record
+                .candidate
+                .as_ref()
+                .and_then(|c| c.predicted_strength)
+                .map(|s| significant(s, 2))
+                .unwrap_or_default();
+            cells.insert(STRENGTH_COLUMN, gf);
+        }
+        table.add_row(cells);
     }
     // One space before each cell and none after: the columns stay apart, and
     // labels such as 2p5.(2P°<3/2>).3s keep to one line at 120 columns.
     for (index, column) in table.column_iter_mut().enumerate() {
         column.set_padding((u16::from(index > 0), 0));
     }
-    for (column, alignment) in [
-        (0, CellAlignment::Right),
-        (1, CellAlignment::Right),
-        (2, CellAlignment::Right),
-        (6, CellAlignment::Right),
-        (7, CellAlignment::Right),
-        (8, CellAlignment::Right),
-        (9, CellAlignment::Right),
-    ] {
+    let right = if strengths {
+        [0, 1, 2, 6, 7, 8, 9, 10].as_slice()
+    } else {
+        [0, 1, 2, 6, 7, 8, 9].as_slice()
+    };
+    for &column in right {
         if let Some(c) = table.column_mut(column) {
-            c.set_cell_alignment(alignment);
+            c.set_cell_alignment(CellAlignment::Right);
         }
     }
     // Natural column widths when they fit; else let the table wrap cells to fit.
@@ -115,6 +126,9 @@ pub fn assign_table(report: &AssignReport<'_>, options: &TableOptions) -> String
     text.push('\n');
     text
 }
+
+/// Where the column of predicted strengths goes: after the upper level.
+const STRENGTH_COLUMN: usize = 6;
 
 /// `air, nm` when every line was given in one unit and medium.
 fn common_unit(records: &[AssignmentRecord]) -> Option<String> {

@@ -161,8 +161,9 @@ impl LinesReport {
                     Medium::conventional(vacuum_nm)
                 };
                 let wavelength_nm = match medium {
-                    Medium::Air => air::vacuum_to_air_nm(vacuum_nm, selection.air_formula)
-                        .unwrap_or(vacuum_nm),
+                    Medium::Air => {
+                        air::vacuum_to_air_nm(vacuum_nm, selection.air_formula).unwrap_or(vacuum_nm)
+                    }
                     Medium::Vacuum => vacuum_nm,
                 };
                 let (lower, upper) = (&spectrum.levels[line.lower], &spectrum.levels[line.upper]);
@@ -184,7 +185,9 @@ impl LinesReport {
                 }
             })
             .filter(|row| {
-                selection.from_nm.is_none_or(|from| row.wavelength_nm >= from)
+                selection
+                    .from_nm
+                    .is_none_or(|from| row.wavelength_nm >= from)
                     && selection.to_nm.is_none_or(|to| row.wavelength_nm <= to)
             })
             .collect();
@@ -275,8 +278,16 @@ pub fn lines_table(report: &LinesReport) -> String {
         .load_style(TableStyle::new().header_separator(LineStyle::none().fill('─').junction('─')))
         .set_content_arrangement(ContentArrangement::Disabled);
     table.set_header(vec![
-        "λ (nm)", "medium", "σ (cm⁻¹)", "lower level", "upper level", "S", "gf", "log gf",
-        "A (s⁻¹)", "flags",
+        "λ (nm)",
+        "medium",
+        "σ (cm⁻¹)",
+        "lower level",
+        "upper level",
+        "S",
+        "gf",
+        "log gf",
+        "A (s⁻¹)",
+        "flags",
     ]);
     for row in &report.rows {
         table.add_row(vec![

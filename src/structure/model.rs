@@ -632,12 +632,13 @@ fn read_dipole(
         let name = key.get_ref().as_ref();
         let at = key.span().start;
         let field = format!("dipole.{name}");
-        let integral: DipoleIntegral = name.parse().map_err(|m: String| lines.error(at, &field, m))?;
+        let integral: DipoleIntegral = name
+            .parse()
+            .map_err(|m: String| lines.error(at, &field, m))?;
         for orbital in [integral.a, integral.b] {
-            let known = configurations.iter().any(|c| {
-                c.subshells()
-                    .any(|s| Orbital { n: s.n, l: s.l } == orbital)
-            });
+            let known = configurations
+                .iter()
+                .any(|c| c.subshells().any(|s| Orbital { n: s.n, l: s.l } == orbital));
             if !known {
                 return Err(lines.error(
                     at,
@@ -646,9 +647,8 @@ fn read_dipole(
                 ));
             }
         }
-        let v = number(value.get_ref()).ok_or_else(|| {
-            lines.error(at, &field, "not a number; give ⟨a|r|b⟩ in bohr")
-        })?;
+        let v = number(value.get_ref())
+            .ok_or_else(|| lines.error(at, &field, "not a number; give ⟨a|r|b⟩ in bohr"))?;
         if out.iter().any(|(i, _)| *i == integral) {
             return Err(lines.error(at, &field, format!("{integral} is given twice")));
         }
@@ -947,13 +947,25 @@ between = ["3s2", "3p2"]
         let e = dipole("\"P(3s,3d)\" = 1.0");
         assert!(e.starts_with("m.toml:26: key 'dipole.P(3s,3d)'"), "{e}");
         let e = dipole("\"P(3s,4p)\" = 1.0");
-        assert!(e.contains("no configuration of the model has a 4p orbital"), "{e}");
+        assert!(
+            e.contains("no configuration of the model has a 4p orbital"),
+            "{e}"
+        );
         let e = dipole("\"P(3s,3p)\" = \"long\"");
         assert!(e.contains("not a number"), "{e}");
         let e = dipole("\"P(3s,3p)\" = 1.0\n\"P(3p,3s)\" = 1.0");
-        assert!(e.starts_with("m.toml:27:") && e.contains("given twice"), "{e}");
-        let e = error(&MG.replace("species = \"Mg I\"\n", "species = \"Mg I\"\nmodel_uncertainty_cm1 = -1\n"));
-        assert!(e.starts_with("m.toml:3: key 'model_uncertainty_cm1'"), "{e}");
+        assert!(
+            e.starts_with("m.toml:27:") && e.contains("given twice"),
+            "{e}"
+        );
+        let e = error(&MG.replace(
+            "species = \"Mg I\"\n",
+            "species = \"Mg I\"\nmodel_uncertainty_cm1 = -1\n",
+        ));
+        assert!(
+            e.starts_with("m.toml:3: key 'model_uncertainty_cm1'"),
+            "{e}"
+        );
     }
 
     fn error(text: &str) -> String {

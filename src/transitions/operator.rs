@@ -36,7 +36,7 @@ use super::TransitionError;
 use crate::angular::{CkTable, six_j, three_j};
 use crate::notation::Parity;
 use crate::structure::{
-    DipoleIntegral, Determinant, LevelStructure, Orbital, ParityBlock, SpinOrbitalLayout,
+    Determinant, DipoleIntegral, LevelStructure, Orbital, ParityBlock, SpinOrbitalLayout,
 };
 
 /// Coefficients smaller than this are zeros blurred by rounding.
@@ -207,8 +207,7 @@ pub(crate) fn hops(layout: &SpinOrbitalLayout) -> (Vec<[Vec<Hop>; 3]>, Vec<Dipol
                 let q = q_index as i32 - 1;
                 let m = from.m_l + q;
                 for (shell, orbital) in orbitals.iter().enumerate() {
-                    let Some(integral) = DipoleIntegral::new(orbitals[from.shell], *orbital)
-                    else {
+                    let Some(integral) = DipoleIntegral::new(orbitals[from.shell], *orbital) else {
                         continue;
                     };
                     if m.unsigned_abs() > orbital.l {
@@ -394,8 +393,8 @@ impl DipoleOperator {
                                 continue;
                             }
                             let two_s = te.two_s;
-                            let symbol =
-                                six_j([2 * te.l, two_je, two_s, two_jo, 2 * to.l, 2]).unwrap_or(0.0);
+                            let symbol = six_j([2 * te.l, two_je, two_s, two_jo, 2 * to.l, 2])
+                                .unwrap_or(0.0);
                             if symbol == 0.0 {
                                 continue;
                             }

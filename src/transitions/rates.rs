@@ -30,15 +30,16 @@ const PLANCK_ERG_S: f64 = PLANCK_CONSTANT_J_S * 1e7;
 const ELEMENTARY_CHARGE_ESU: f64 = ELEMENTARY_CHARGE_C * 10.0 * SPEED_OF_LIGHT_M_S;
 
 /// gf per (σ in cm⁻¹ × S in e²a₀²): 8π² m_e c a₀² / 3h = 3.03756×10⁻⁶ cm.
-pub const GF_PER_WAVENUMBER_STRENGTH: f64 = 8.0 * PI * PI
-    * ELECTRON_MASS_G
-    * SPEED_OF_LIGHT_CM_S
-    * BOHR_RADIUS_CM
-    * BOHR_RADIUS_CM
-    / (3.0 * PLANCK_ERG_S);
+pub const GF_PER_WAVENUMBER_STRENGTH: f64 =
+    8.0 * PI * PI * ELECTRON_MASS_G * SPEED_OF_LIGHT_CM_S * BOHR_RADIUS_CM * BOHR_RADIUS_CM
+        / (3.0 * PLANCK_ERG_S);
 
 /// gA per (σ³ in cm⁻³ × S in e²a₀²): 64π⁴ e² a₀² / 3h = 2.02613×10⁻⁶ cm³ s⁻¹.
-pub const GA_PER_WAVENUMBER_CUBED_STRENGTH: f64 = 64.0 * PI * PI * PI * PI
+pub const GA_PER_WAVENUMBER_CUBED_STRENGTH: f64 = 64.0
+    * PI
+    * PI
+    * PI
+    * PI
     * ELEMENTARY_CHARGE_ESU
     * ELEMENTARY_CHARGE_ESU
     * BOHR_RADIUS_CM

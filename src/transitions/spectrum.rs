@@ -156,11 +156,14 @@ pub fn model_spectrum(
         // Levels of each J block, ordered by root, and their eigenvectors as columns.
         let members = |block: usize, j_block: usize| -> (Vec<usize>, DMatrix<f64>) {
             let mut idx: Vec<usize> = (0..labelled.len())
-                .filter(|&i| labelled[i].level.block == block && labelled[i].level.j_block == j_block)
+                .filter(|&i| {
+                    labelled[i].level.block == block && labelled[i].level.j_block == j_block
+                })
                 .collect();
             idx.sort_by_key(|&i| labelled[i].level.root);
             let n = structure.blocks()[block].j_blocks[j_block].states.len();
-            let vectors = DMatrix::from_fn(n, idx.len(), |r, c| labelled[idx[c]].level.eigenvector[r]);
+            let vectors =
+                DMatrix::from_fn(n, idx.len(), |r, c| labelled[idx[c]].level.eigenvector[r]);
             (idx, vectors)
         };
         for pair in operator.pairs() {

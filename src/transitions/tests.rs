@@ -247,16 +247,14 @@ fn line_strengths_with_a_core_open_in_one_parity_only() {
 #[test]
 fn line_strengths_with_three_open_subshells() {
     // 3d.4s.4p – 3d.4s2 and 3d2.4s: parent terms coupled in order, ζ in all three.
-    check_against_slow_path(
-        &["3d.4s2", "3d2.4s", "3d.4s.4p"],
-        &[(0, 1)],
-        5,
-        |p| match p.to_string().as_str() {
-            "P(4s,4p)" => 4.2,
-            "P(3d,4p)" => -1.7,
-            _ => 0.0,
-        },
-    );
+    check_against_slow_path(&["3d.4s2", "3d2.4s", "3d.4s.4p"], &[(0, 1)], 5, |p| match p
+        .to_string()
+        .as_str()
+    {
+        "P(4s,4p)" => 4.2,
+        "P(3d,4p)" => -1.7,
+        _ => 0.0,
+    });
 }
 
 // ---------------------------------------------------------------------------
@@ -423,7 +421,11 @@ fn intercombination_to_resonance_ratio_is_tan_squared_of_the_mixing_angle() {
         .iter()
         .find(|l| spectrum.levels[l.upper].label.to_string() == "3s.3p 3P° 1")
         .unwrap();
-    assert!(intercombination.strength < 1e-25, "{}", intercombination.strength);
+    assert!(
+        intercombination.strength < 1e-25,
+        "{}",
+        intercombination.strength
+    );
 }
 
 /// Σ S over every line from each level of `lower` (configuration 0) to every level
@@ -431,10 +433,12 @@ fn intercombination_to_resonance_ratio_is_tan_squared_of_the_mixing_angle() {
 fn strength_sums(values_zeta: (f64, f64), other: &[f64; 6]) -> (Vec<f64>, f64) {
     let structure = LevelStructure::build(&configs(&["3p2", "3p.3d"]), &[]).unwrap();
     let mut iter = other.iter().copied().cycle();
-    let values = values(&structure, &[0.0, 60_000.0], |id| match (id.radial, id.scope) {
-        (Radial::SpinOrbit { .. }, Scope::Configuration(0)) => values_zeta.0,
-        (Radial::SpinOrbit { .. }, _) => values_zeta.1,
-        _ => iter.next().unwrap_or(0.0),
+    let values = values(&structure, &[0.0, 60_000.0], |id| {
+        match (id.radial, id.scope) {
+            (Radial::SpinOrbit { .. }, Scope::Configuration(0)) => values_zeta.0,
+            (Radial::SpinOrbit { .. }, _) => values_zeta.1,
+            _ => iter.next().unwrap_or(0.0),
+        }
     });
     let operator = DipoleOperator::build(&structure).unwrap();
     let spectrum = model_spectrum(&structure, &operator, &values, &[2.7]).unwrap();
@@ -579,7 +583,11 @@ fn hydrogen_oscillator_strengths() {
         spectrum.levels[l.lower].level.configuration == 0
             && spectrum.levels[l.upper].level.configuration == 2
     }) {
-        assert!((line.a_per_s / 6.268e8 - 1.0).abs() < 2e-4, "{}", line.a_per_s);
+        assert!(
+            (line.a_per_s / 6.268e8 - 1.0).abs() < 2e-4,
+            "{}",
+            line.a_per_s
+        );
     }
 }
 
@@ -596,9 +604,11 @@ fn no_line_breaks_parity_or_delta_j_and_no_zero_zero_line() {
     )
     .unwrap();
     let mut rng = Lcg(3);
-    let values = values(&structure, &[0.0, 50_000.0, 40_000.0, 30_000.0, 70_000.0, 80_000.0], |_| {
-        rng.range(100.0, 9_000.0)
-    });
+    let values = values(
+        &structure,
+        &[0.0, 50_000.0, 40_000.0, 30_000.0, 70_000.0, 80_000.0],
+        |_| rng.range(100.0, 9_000.0),
+    );
     let operator = DipoleOperator::build(&structure).unwrap();
     assert_eq!(
         operator
@@ -637,9 +647,17 @@ fn no_line_breaks_parity_or_delta_j_and_no_zero_zero_line() {
     };
     assert!(flagged(0, 5).iter().all(|l| l.flags.jump_forbidden));
     assert!(flagged(1, 5).iter().all(|l| l.flags.two_electron_jump));
-    assert!(flagged(0, 3).iter().all(|l| !l.flags.jump_forbidden && !l.flags.two_electron_jump));
+    assert!(
+        flagged(0, 3)
+            .iter()
+            .all(|l| !l.flags.jump_forbidden && !l.flags.two_electron_jump)
+    );
     // Labels are unique.
-    let mut labels: Vec<String> = spectrum.levels.iter().map(|l| l.label.to_string()).collect();
+    let mut labels: Vec<String> = spectrum
+        .levels
+        .iter()
+        .map(|l| l.label.to_string())
+        .collect();
     labels.sort();
     let count = labels.len();
     labels.dedup();
@@ -662,12 +680,7 @@ fn labels_stay_unique_when_two_levels_share_a_leading_component() {
         names.sort();
         assert_eq!(
             names,
-            vec![
-                "3s.3p 1P° 1",
-                "3s.3p 3P° 0",
-                "3s.3p 3P° 1",
-                "3s.3p 3P° 2"
-            ]
+            vec!["3s.3p 1P° 1", "3s.3p 3P° 0", "3s.3p 3P° 1", "3s.3p 3P° 2"]
         );
     }
 }
@@ -676,14 +689,28 @@ fn labels_stay_unique_when_two_levels_share_a_leading_component() {
 fn a_missing_dipole_integral_is_named() {
     let structure = LevelStructure::build(&configs(&["3s2", "3s.3p"]), &[]).unwrap();
     let operator = DipoleOperator::build(&structure).unwrap();
-    let e = operator.values_from(&structure, &[]).unwrap_err().to_string();
-    assert!(e.contains("P(3s,3p)") && e.contains("3s2") && e.contains("3s.3p"), "{e}");
+    let e = operator
+        .values_from(&structure, &[])
+        .unwrap_err()
+        .to_string();
+    assert!(
+        e.contains("P(3s,3p)") && e.contains("3s2") && e.contains("3s.3p"),
+        "{e}"
+    );
     let p: DipoleIntegral = "P(3s,3p)".parse().unwrap();
-    assert_eq!(operator.values_from(&structure, &[(p, 2.0)]).unwrap(), vec![2.0]);
+    assert_eq!(
+        operator.values_from(&structure, &[(p, 2.0)]).unwrap(),
+        vec![2.0]
+    );
     // One parity only: no operator blocks, no lines.
     let even = LevelStructure::build(&configs(&["3s2", "3p2"]), &[]).unwrap();
     let operator = DipoleOperator::build(&even).unwrap();
     assert!(operator.blocks().is_none() && operator.integrals().is_empty());
     let values = vec![1.0; even.parameters().len()];
-    assert!(model_spectrum(&even, &operator, &values, &[]).unwrap().lines.is_empty());
+    assert!(
+        model_spectrum(&even, &operator, &values, &[])
+            .unwrap()
+            .lines
+            .is_empty()
+    );
 }
