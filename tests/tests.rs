@@ -5,6 +5,7 @@ mod angular_tables;
 mod assign_cli;
 mod assign_reference;
 mod levels_cli;
+mod lines_cli;
 mod radial;
 mod structure_physics;
 mod structure_tables;
