@@ -23,7 +23,10 @@ fn model(name: &str) -> (Vec<Configuration>, Vec<(usize, usize)>) {
         }
         _ => unreachable!(),
     };
-    (labels.iter().map(|l| l.parse().unwrap()).collect(), vec![(0, 1)])
+    (
+        labels.iter().map(|l| l.parse().unwrap()).collect(),
+        vec![(0, 1)],
+    )
 }
 
 /// Invented values of realistic size (cm⁻¹) for every parameter.

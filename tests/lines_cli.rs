@@ -64,8 +64,14 @@ fn number(row: &std::collections::HashMap<String, String>, column: &str) -> f64 
 #[test]
 fn example_model_lines_as_csv() {
     let text = stdout(&termsight(&["lines", CA, "--format", "csv"]));
-    assert!(text.starts_with("# Ca I: E1 lines of the level model"), "{text}");
-    assert!(text.contains("Birch & Downs (1994"), "the air formula is named");
+    assert!(
+        text.starts_with("# Ca I: E1 lines of the level model"),
+        "{text}"
+    );
+    assert!(
+        text.contains("Birch & Downs (1994"),
+        "the air formula is named"
+    );
     let rows = csv_rows(&text);
     assert_eq!(rows.len(), 27);
     for row in &rows {
@@ -94,10 +100,14 @@ fn example_model_lines_as_csv() {
     let find = |lower: &str, upper: &str| {
         rows.iter()
             .find(|r| {
-                format!("{} {} {}", r["lower_configuration"], r["lower_term"], r["lower_J"])
-                    == lower
-                    && format!("{} {} {}", r["upper_configuration"], r["upper_term"], r["upper_J"])
-                        == upper
+                format!(
+                    "{} {} {}",
+                    r["lower_configuration"], r["lower_term"], r["lower_J"]
+                ) == lower
+                    && format!(
+                        "{} {} {}",
+                        r["upper_configuration"], r["upper_term"], r["upper_J"]
+                    ) == upper
             })
             .unwrap_or_else(|| panic!("no line {lower} – {upper}"))
     };
@@ -109,7 +119,10 @@ fn example_model_lines_as_csv() {
     assert_eq!(intercombination["flags"], "intercombination");
     assert!(number(intercombination, "gf") < 1e-3 * number(resonance, "gf"));
     // No 0–0 line, no ΔJ = 2 line (Condon & Shortley 1935, ch. 9).
-    assert!(rows.iter().all(|r| !(r["lower_J"] == "0" && r["upper_J"] == "0")));
+    assert!(
+        rows.iter()
+            .all(|r| !(r["lower_J"] == "0" && r["upper_J"] == "0"))
+    );
 }
 
 #[test]
@@ -118,7 +131,10 @@ fn filters_select_by_wavelength_and_gf() {
     let text = stdout(&termsight(&[
         "lines", CA, "--format", "csv", "--from", "400", "--to", "700", "--min-gf", "0.001",
     ]));
-    assert!(text.contains("λ ≥ 400 nm, λ ≤ 700 nm, gf ≥ 0.001"), "{text}");
+    assert!(
+        text.contains("λ ≥ 400 nm, λ ≤ 700 nm, gf ≥ 0.001"),
+        "{text}"
+    );
     let some = csv_rows(&text);
     let expected = all
         .iter()
@@ -154,7 +170,14 @@ fn table_and_json() {
     assert!(rows[0]["gf"].as_f64().unwrap() > 0.0);
     assert_eq!(json["dipole_integrals"][0]["name"], "P(3d,4p)");
     let help = stdout(&termsight(&["lines", "--help"]));
-    for flag in ["--from", "--to", "--min-gf", "--vacuum", "--air-formula", "--format"] {
+    for flag in [
+        "--from",
+        "--to",
+        "--min-gf",
+        "--vacuum",
+        "--air-formula",
+        "--format",
+    ] {
         assert!(help.contains(flag), "{flag}");
     }
 }
@@ -168,19 +191,28 @@ fn broken_models_and_flags_give_clear_errors() {
     let path = dir.path().join("no-dipole.toml");
     std::fs::write(&path, &cut).unwrap();
     let e = stderr(&termsight(&["lines", path.to_str().unwrap()]));
-    assert!(e.contains("no-dipole.toml") && e.contains("P(3d,4p)"), "{e}");
+    assert!(
+        e.contains("no-dipole.toml") && e.contains("P(3d,4p)"),
+        "{e}"
+    );
     // One parity only.
     let even = "species = \"Ca I\"\n[[configuration]]\nlabel = \"4s2\"\nEav = 0.0\n";
     let path = dir.path().join("even.toml");
     std::fs::write(&path, even).unwrap();
     let e = stderr(&termsight(&["lines", path.to_str().unwrap()]));
-    assert!(e.contains("every configuration of the model is even"), "{e}");
+    assert!(
+        e.contains("every configuration of the model is even"),
+        "{e}"
+    );
     // A bad dipole entry names its line.
     let bad = example.replace("\"P(3d,4p)\" = 2.4", "\"P(3d,4p)\" = \"big\"");
     let path = dir.path().join("bad.toml");
     std::fs::write(&path, bad).unwrap();
     let e = stderr(&termsight(&["lines", path.to_str().unwrap()]));
-    assert!(e.contains("bad.toml:") && e.contains("dipole.P(3d,4p)"), "{e}");
+    assert!(
+        e.contains("bad.toml:") && e.contains("dipole.P(3d,4p)"),
+        "{e}"
+    );
     let e = stderr(&termsight(&["lines", CA, "--from", "700", "--to", "400"]));
     assert!(e.contains("--from 700 is longer than --to 400"), "{e}");
 }
@@ -239,7 +271,11 @@ fn assign_matches_observed_lines_against_the_model() {
     }
     assert_eq!(assigned.iter().filter(|r| r["rank"] == "1").count(), 3);
     // The intercombination line keeps its flag.
-    assert!(assigned.iter().any(|r| r["flags"].contains("intercombination")));
+    assert!(
+        assigned
+            .iter()
+            .any(|r| r["flags"].contains("intercombination"))
+    );
     // Alongside a compiled table, and with the uncertainty from the flag.
     let text = stdout(&termsight(&[
         "assign",

@@ -105,7 +105,7 @@ pub(crate) fn model_lines(path: &Path) -> Result<ModelLines, CliError> {
     let message =
         |e: crate::transitions::TransitionError| CliError::Message(format!("{name}: {e}"));
     let mut report = |p: DipoleProgress| {
-        if p.total > PROGRESS_ABOVE && (p.done % (p.total / 10).max(1) == 0) {
+        if p.total > PROGRESS_ABOVE && p.done.is_multiple_of((p.total / 10).max(1)) {
             let _ = writeln!(
                 io::stderr(),
                 "termsight: dipole matrix, {} of {} odd LS states",

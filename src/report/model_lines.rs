@@ -44,7 +44,7 @@ pub const LINE_COLUMNS: [&str; 18] = [
 ];
 
 /// Which lines to show and how to write wavelengths.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
 pub struct LineSelection {
     /// Shortest wavelength shown, nm, as printed (in its medium); `None`: no limit.
     pub from_nm: Option<f64>,
@@ -56,18 +56,6 @@ pub struct LineSelection {
     pub all_vacuum: bool,
     /// The air formula for wavelengths in air.
     pub air_formula: AirFormula,
-}
-
-impl Default for LineSelection {
-    fn default() -> Self {
-        LineSelection {
-            from_nm: None,
-            to_nm: None,
-            min_gf: None,
-            all_vacuum: false,
-            air_formula: AirFormula::default(),
-        }
-    }
 }
 
 /// One printed line.

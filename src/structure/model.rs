@@ -654,7 +654,7 @@ fn read_dipole(
         }
         out.push((integral, v));
     }
-    out.sort_by(|a, b| a.0.cmp(&b.0));
+    out.sort_by_key(|a| a.0);
     Ok(out)
 }
 
