@@ -25,8 +25,8 @@ pub fn ritz_wavenumber(lower: &Level, upper: &Level) -> (f64, f64) {
 /// 0 ↔ 0) gives a line (see [`super::e1`]); the higher level is the upper one.
 /// Pairs of equal energy give no line. Each line is classified with
 /// [`super::e1::classify`]: LS rules where both labels are LS, parity and J rules
-/// only otherwise; intercombination, L-forbidden, jump-forbidden and two-electron-jump lines are kept
-/// and flagged. The result is sorted by wavenumber; its species origins read
+/// only otherwise; intercombination, L-forbidden, jump-forbidden and
+/// two-electron-jump lines are kept and flagged. The result is sorted by wavenumber; its species origins read
 /// `Ritz wavenumbers from <table source>`, with no model uncertainty.
 ///
 /// The work is O(n²) in the number of levels of each species (25 000 pairs for the

@@ -29,9 +29,10 @@ impl Default for TableOptions {
 }
 
 /// The description lines and a table with, per observed line, the best candidate and
-/// the number of alternatives (or every candidate with `all`). Levels are printed
-/// without the subshells closed in both of them (the full labels are in the CSV and
-/// JSON outputs).
+/// the number of alternatives (or every candidate with `all`), and the predicted gf
+/// in a column of its own when the predictions have strengths (a level model).
+/// Levels are printed without the subshells closed in both of them (the full labels
+/// are in the CSV and JSON outputs).
 pub fn assign_table(report: &AssignReport<'_>, options: &TableOptions) -> String {
     let mut table = Table::new();
     table

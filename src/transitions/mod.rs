@@ -31,8 +31,8 @@
 //! use termsight::notation::Configuration;
 //! use termsight::structure::{LevelStructure, Radial};
 //! use termsight::transitions::{DipoleOperator, model_spectrum};
-//! // 3s² ¹S – 3s3p ¹P°: pure LS (ζ = 0) gives S = 3·|⟨3s|r|3p⟩|²·… ; here just
-//! // check that the singlet line is there and the intercombination line is not.
+//! // 3s² and 3s3p in pure LS (ζ = 0), ⟨3s|r|3p⟩ = 2.5 bohr: the strongest line is
+//! // the resonance line 3s² ¹S₀ – 3s3p ¹P°₁.
 //! let configs: Vec<Configuration> = vec!["3s2".parse().unwrap(), "3s.3p".parse().unwrap()];
 //! let structure = LevelStructure::build(&configs, &[]).unwrap();
 //! let values: Vec<f64> = structure
@@ -62,7 +62,7 @@ pub use predictions::model_predictions;
 pub use spectrum::{LabelledLevel, ModelLine, ModelSpectrum, model_spectrum, unique_labels};
 
 pub use crate::structure::DipoleIntegral;
-use crate::structure::{LevelStructure, StructureError};
+use crate::structure::StructureError;
 
 /// Lines that cannot be predicted.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
@@ -113,12 +113,6 @@ pub enum TransitionError {
     /// The level model could not be evaluated.
     #[error(transparent)]
     Structure(#[from] StructureError),
-}
-
-/// The structure's configurations of both parities, for a quick check: true when
-/// the model can have E1 lines at all.
-pub fn has_both_parities(structure: &LevelStructure) -> bool {
-    structure.blocks().len() == 2
 }
 
 #[cfg(test)]
