@@ -1,0 +1,3 @@
+//! Level tables, Ritz predictions and level optimisation.
+
+pub mod optimize;
