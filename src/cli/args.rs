@@ -6,7 +6,7 @@ use clap::{Parser, Subcommand};
 /// Term analysis of atomic spectra: assign measured lines to transitions, optimise
 /// level energies, and fit Slater parameters of a level model.
 #[derive(Debug, Parser)]
-#[command(name = "termsight", version, about, long_about = None)]
+#[command(name = "termsight", version, about, long_about = None, max_term_width = 100)]
 pub struct Cli {
     /// The command to run.
     #[command(subcommand)]
@@ -16,15 +16,15 @@ pub struct Cli {
 /// The commands.
 #[derive(Debug, Subcommand)]
 pub enum Command {
-    /// Assign each line of a measured line list to candidate transitions, ranked.
-    Assign(AssignArgs),
-}
-
-/// Arguments of `termsight assign`.
-#[derive(Debug, clap::Args)]
-pub struct AssignArgs {
-    /// The measured line list (CSV, TSV or whitespace columns with a header).
-    pub lines: std::path::PathBuf,
+    /// Assign each line of a measured line list to candidate transitions, ranked,
+    /// with the probability that each match is chance.
+    #[command(long_about = super::assign::LONG_ABOUT)]
+    Assign(super::assign::AssignArgs),
+    /// Compute every level of an ion's level model in intermediate coupling.
+    Levels(super::levels::LevelsArgs),
+    /// Orbitals and radial integrals (E_av, F^k, G^k, R^k, ζ, ⟨r⟩) of configurations,
+    /// from a self-consistent field.
+    Radial(super::radial::RadialArgs),
 }
 
 #[cfg(test)]

@@ -6,7 +6,10 @@
 //! into place, so an interrupted run never leaves half a file.
 
 pub mod args;
+pub mod assign;
+pub mod levels;
 pub mod output;
+pub mod radial;
 
 use std::io::{self, Write};
 use std::process::ExitCode;
@@ -34,9 +37,9 @@ pub fn main() -> ExitCode {
 /// Dispatch a parsed command line.
 pub fn run(cli: Cli) -> Result<(), CliError> {
     match cli.command {
-        Command::Assign(_) => Err(CliError::Message(
-            "the assign command is being built".into(),
-        )),
+        Command::Assign(args) => assign::run(args),
+        Command::Levels(args) => levels::run(args),
+        Command::Radial(args) => radial::run(args),
     }
 }
 

@@ -1,3 +1,48 @@
-//! Level tables, Ritz predictions and level optimisation.
+//! Levels: level tables, the reference tables compiled into the program, and the
+//! E1 lines predicted from levels by the Ritz combination principle.
+//!
+//! - [`LevelLabel`]: configuration, term and J of a level, parsed and printed through
+//!   [`crate::notation`]; with the species it is the key of a level.
+//! - [`Level`], [`LevelTable`], [`read_level_table`]: the CSV level table
+//!   `species,configuration,term,J,energy_cm1,uncertainty_cm1,source`.
+//! - [`EMBEDDED_TABLES`]: H I, He I, Ne I, Ar I, Cd I and Hg I from the NIST Atomic
+//!   Spectra Database (2014), see `reference-levels/SOURCES.md`.
+//! - [`e1`]: the E1 selection rules, which pairs of levels may combine and how a line
+//!   is flagged (intercombination, L-forbidden, jump-forbidden).
+//! - [`Predictions`], [`PredictedLine`]: predicted lines sorted by wavenumber, with
+//!   their levels, flags and the rules applied, from a table ([`predict_from_table`])
+//!   or, later, from a level model. The matcher ([`crate::assign`]) reads only these.
+//! - [`optimize`]: level energies from assigned lines by weighted least squares.
+//!
+//! ```
+//! use termsight::levels::{EMBEDDED_TABLES, predict_from_table};
+//! let helium = EMBEDDED_TABLES.iter().find(|t| t.species == "He I").unwrap();
+//! let predictions = predict_from_table(&helium.load().unwrap()).unwrap();
+//! // He I 1s2p 1P°1 – 1s3d 1D2, the red line at 667.8 nm in air (14970.07 cm⁻¹).
+//! let red = predictions
+//!     .lines()
+//!     .iter()
+//!     .find(|l| (l.wavenumber_cm1 - 14970.07).abs() < 0.01)
+//!     .unwrap();
+//! let (lower, upper) = predictions.levels_of(red).unwrap();
+//! assert_eq!(lower.label.to_string(), "1s.2p 1P° 1");
+//! assert_eq!(upper.label.to_string(), "1s.3d 1D 2");
+//! ```
 
+pub(crate) mod csv_text;
+pub mod e1;
+mod embedded;
+mod label;
 pub mod optimize;
+mod predicted;
+mod ritz;
+mod table;
+
+pub use e1::{SelectionRules, TransitionFlags};
+pub use embedded::{EMBEDDED_TABLES, EmbeddedTable, embedded_table};
+pub use label::{LabelError, LevelLabel};
+pub use predicted::{PredictedLine, PredictionError, Predictions, SpeciesOrigin, SpeciesSummary};
+pub use ritz::{predict_from_table, ritz_wavenumber};
+pub use table::{
+    LEVEL_COLUMNS, Level, LevelTable, LevelTableError, MAX_LEVEL_TABLE_BYTES, read_level_table,
+};

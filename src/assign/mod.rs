@@ -1,0 +1,410 @@
+//! Assigning observed lines: candidates within tolerance, ranked, with the
+//! probability that each is a chance coincidence, and flags.
+//!
+//! [`assign_lines`] takes measured lines ([`ObservedLine`]) and a [`Predictions`] set
+//! (Ritz lines from level tables, or lines of a level model: the matcher does not
+//! care which) and returns, per observed line, a [`LineAssignment`] with its ranked
+//! [`Candidate`]s. [`records`] flattens the result into [`AssignmentRecord`]s, one per
+//! candidate (or one for an unassigned line): the rows of the assign CSV, which
+//! [`read_assignments`] reads back.
+//!
+//! # How candidates are found and ranked
+//!
+//! - A predicted line is a candidate for an observed line when
+//!   |σ_obs − σ_pred| ≤ k·u_c, with u_c = √(u_obs² + u_pred² + u_model²): the
+//!   observed line's uncertainty, the prediction's, and the per-species model
+//!   uncertainty of the set (0 for level tables). k is
+//!   [`MatchConfig::tolerance_sigma`] (default 3).
+//! - Candidates are found by binary search in the sorted predictions (see
+//!   `search.rs`): never by scanning every pair.
+//! - They are ranked by their deviation in combined standard uncertainties, |Δ|/u_c,
+//!   where a line that breaks a non-rigorous selection rule (intercombination,
+//!   L-forbidden, jump-forbidden) counts as if it lay further off:
+//!   √((Δ/u_c)² + n·p²) for n broken rules, p = [`MatchConfig::rule_penalty_sigma`]
+//!   (default 2; 0 ranks by deviation alone). Ties: lower chance probability
+//!   first, then prediction order.
+//! - Each gets a chance-coincidence probability from the local density of predicted
+//!   lines (see [`chance`]).
+//! - Flags ([`Flag`]): those of the predicted line (`intercombination`,
+//!   `L-forbidden`, `jump-forbidden`), `blend` when more than one candidate lies
+//!   within tolerance, `unassigned` when none does.
+//!
+//! ```
+//! use termsight::assign::{assign_lines, MatchConfig};
+//! use termsight::levels::{EMBEDDED_TABLES, predict_from_table};
+//! use termsight::linelist::{GivenPosition, ObservedLine};
+//! let helium = EMBEDDED_TABLES.iter().find(|t| t.species == "He I").unwrap();
+//! let predictions = predict_from_table(&helium.load().unwrap()).unwrap();
+//! // A line at 14970.1 cm⁻¹ ± 0.05 (He I 667.8 nm in air).
+//! let line = ObservedLine {
+//!     row: 1,
+//!     source_line: 2,
+//!     given: GivenPosition::Wavenumber { value: 14970.1 },
+//!     wavenumber_cm1: 14970.1,
+//!     uncertainty_cm1: 0.05,
+//!     intensity: None,
+//!     extra: vec![],
+//! };
+//! let result = assign_lines(&[line], &predictions, &MatchConfig::default());
+//! let best = &result[0].candidates[0];
+//! let predicted = &predictions.lines()[best.prediction];
+//! let (lower, upper) = predictions.levels_of(predicted).unwrap();
+//! assert_eq!(format!("{} – {}", lower.label, upper.label), "1s.2p 1P° 1 – 1s.3d 1D 2");
+//! ```
+
+pub mod chance;
+mod record;
+mod search;
+
+use std::fmt;
+
+use serde::{Deserialize, Serialize};
+
+use crate::levels::{PredictedLine, Predictions};
+use crate::linelist::ObservedLine;
+pub use record::{
+    ASSIGN_COLUMNS, AssignmentFile, AssignmentReadError, AssignmentRecord, CandidateRecord,
+    read_assignments, records,
+};
+use search::{CandidateIndex, Cursor, Hit};
+
+/// Settings of the matcher.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct MatchConfig {
+    tolerance_sigma: f64,
+    density_window_factor: f64,
+    rule_penalty_sigma: f64,
+}
+
+/// A setting out of its range.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[non_exhaustive]
+pub enum MatchConfigError {
+    /// The tolerance must be a finite number greater than zero.
+    #[error("the tolerance must be a number of standard uncertainties greater than 0, got {0}")]
+    Tolerance(f64),
+    /// The density window factor must be finite and at least 1.
+    #[error("the density window factor must be at least 1, got {0}")]
+    WindowFactor(f64),
+    /// The rule penalty must be finite and at least 0.
+    #[error("the selection-rule penalty must be a number of standard uncertainties ≥ 0, got {0}")]
+    RulePenalty(f64),
+}
+
+impl Default for MatchConfig {
+    fn default() -> Self {
+        MatchConfig {
+            tolerance_sigma: MatchConfig::DEFAULT_TOLERANCE_SIGMA,
+            density_window_factor: MatchConfig::DEFAULT_DENSITY_WINDOW_FACTOR,
+            rule_penalty_sigma: MatchConfig::DEFAULT_RULE_PENALTY_SIGMA,
+        }
+    }
+}
+
+impl MatchConfig {
+    /// Default tolerance, in combined standard uncertainties: 3.
+    pub const DEFAULT_TOLERANCE_SIGMA: f64 = 3.0;
+    /// Default ratio of the density-counting half-window to the tolerance: 300.
+    pub const DEFAULT_DENSITY_WINDOW_FACTOR: f64 = 300.0;
+    /// Default selection-rule penalty in ranking, in standard uncertainties: 2.
+    pub const DEFAULT_RULE_PENALTY_SIGMA: f64 = 2.0;
+
+    /// Candidates lie within `k` combined standard uncertainties; `k` > 0.
+    /// Default: 3.
+    pub fn with_tolerance_sigma(mut self, k: f64) -> Result<Self, MatchConfigError> {
+        if !(k.is_finite() && k > 0.0) {
+            return Err(MatchConfigError::Tolerance(k));
+        }
+        self.tolerance_sigma = k;
+        Ok(self)
+    }
+
+    /// The line density for chance probabilities is counted within ±`factor`·k·u_c
+    /// of the observed line; `factor` ≥ 1. Default: 300.
+    pub fn with_density_window_factor(mut self, factor: f64) -> Result<Self, MatchConfigError> {
+        if !(factor.is_finite() && factor >= 1.0) {
+            return Err(MatchConfigError::WindowFactor(factor));
+        }
+        self.density_window_factor = factor;
+        Ok(self)
+    }
+
+    /// In ranking, a candidate that breaks `n` of the non-rigorous selection rules
+    /// (flags `intercombination`, `L-forbidden`, `jump-forbidden`) counts as if its
+    /// deviation were √((Δ/u_c)² + n·p²) standard uncertainties, with p this
+    /// penalty; p ≥ 0, and 0 ranks by deviation alone. Default: 2.
+    ///
+    /// Why: when two candidates lie within the measurement's uncertainty of each
+    /// other, their deviations cannot tell them apart, and the selection rules are
+    /// the better guide (He I 3d ¹D – 8f ¹F° and 3d ¹D – 8f ³F° lie 0.003 cm⁻¹
+    /// apart). In likelihood terms p = 2 gives a line that breaks a rule prior odds
+    /// of e^(−p²/2) ≈ 1/7.4 against an allowed one: a clear preference that still
+    /// lets a rule-breaking line win when it is two standard uncertainties closer,
+    /// as the strong intercombination lines of heavy atoms (Hg I 253.7 nm) need.
+    /// Candidates are still found, and flagged, by the tolerance alone.
+    pub fn with_rule_penalty_sigma(mut self, penalty: f64) -> Result<Self, MatchConfigError> {
+        if !(penalty.is_finite() && penalty >= 0.0) {
+            return Err(MatchConfigError::RulePenalty(penalty));
+        }
+        self.rule_penalty_sigma = penalty;
+        Ok(self)
+    }
+
+    /// The selection-rule penalty p, in standard uncertainties.
+    pub fn rule_penalty_sigma(&self) -> f64 {
+        self.rule_penalty_sigma
+    }
+
+    /// The tolerance k, in combined standard uncertainties.
+    pub fn tolerance_sigma(&self) -> f64 {
+        self.tolerance_sigma
+    }
+
+    /// The density window factor F.
+    pub fn density_window_factor(&self) -> f64 {
+        self.density_window_factor
+    }
+}
+
+/// A flag on a candidate or on an observed line.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
+pub enum Flag {
+    /// The predicted line changes the total spin (ΔS ≠ 0, LS labels).
+    Intercombination,
+    /// The predicted line breaks ΔL = 0, ±1 (not 0 ↔ 0) in LS coupling.
+    LForbidden,
+    /// The configurations do not differ by one electron with Δl = ±1.
+    JumpForbidden,
+    /// More than one candidate lies within tolerance of the observed line.
+    Blend,
+    /// No candidate lies within tolerance.
+    Unassigned,
+}
+
+impl Flag {
+    /// Every flag, in output order.
+    pub const ALL: [Flag; 5] = [
+        Flag::Intercombination,
+        Flag::LForbidden,
+        Flag::JumpForbidden,
+        Flag::Blend,
+        Flag::Unassigned,
+    ];
+
+    /// The name written in outputs.
+    pub fn name(self) -> &'static str {
+        match self {
+            Flag::Intercombination => "intercombination",
+            Flag::LForbidden => "L-forbidden",
+            Flag::JumpForbidden => "jump-forbidden",
+            Flag::Blend => "blend",
+            Flag::Unassigned => "unassigned",
+        }
+    }
+
+    /// Parse a name printed by [`Flag::name`].
+    pub fn from_name(name: &str) -> Option<Flag> {
+        Flag::ALL.into_iter().find(|f| f.name() == name.trim())
+    }
+}
+
+impl fmt::Display for Flag {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(self.name())
+    }
+}
+
+/// One candidate assignment of an observed line.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Candidate {
+    /// Index of the predicted line in [`Predictions::lines`].
+    pub prediction: usize,
+    /// Δ = σ_obs − σ_pred, cm⁻¹.
+    pub deviation_cm1: f64,
+    /// u_c = √(u_obs² + u_pred² + u_model²), cm⁻¹.
+    pub combined_uncertainty_cm1: f64,
+    /// Δ / u_c (signed).
+    pub deviation_sigma: f64,
+    /// The number ranked on: √((Δ/u_c)² + n·p²) for a line breaking n selection
+    /// rules, with p the rule penalty (see [`MatchConfig::with_rule_penalty_sigma`]);
+    /// |Δ/u_c| for a line breaking none.
+    pub ranking_sigma: f64,
+    /// Probability that a line this close is a chance coincidence (see [`chance`]).
+    pub chance_probability: f64,
+}
+
+impl Candidate {
+    /// The flags of this candidate: those of its predicted `line`, then `blend` when
+    /// `blend` is true (the observed line has more than one candidate, see
+    /// [`LineAssignment::is_blend`]).
+    pub fn flags(&self, line: &PredictedLine, blend: bool) -> Vec<Flag> {
+        let mut flags = Vec::new();
+        if line.flags.intercombination {
+            flags.push(Flag::Intercombination);
+        }
+        if line.flags.l_forbidden {
+            flags.push(Flag::LForbidden);
+        }
+        if line.flags.jump_forbidden {
+            flags.push(Flag::JumpForbidden);
+        }
+        if blend {
+            flags.push(Flag::Blend);
+        }
+        flags
+    }
+}
+
+/// The candidates of one observed line, best first (empty: unassigned).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct LineAssignment {
+    /// Index of the observed line in the slice given to [`assign_lines`].
+    pub observed: usize,
+    /// Candidates, ranked.
+    pub candidates: Vec<Candidate>,
+}
+
+impl LineAssignment {
+    /// True when no candidate lies within tolerance.
+    pub fn is_unassigned(&self) -> bool {
+        self.candidates.is_empty()
+    }
+
+    /// True when more than one candidate lies within tolerance (flag `blend`).
+    pub fn is_blend(&self) -> bool {
+        self.candidates.len() > 1
+    }
+}
+
+/// How far the matcher has come: `done` of `total` observed lines.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct MatchProgress {
+    /// Lines matched so far.
+    pub done: usize,
+    /// Lines in all.
+    pub total: usize,
+}
+
+/// Lines between two progress reports.
+const PROGRESS_EVERY: usize = 1 << 16;
+
+/// Assign every observed line; see the module documentation. The result has one
+/// [`LineAssignment`] per observed line, in the order given.
+pub fn assign_lines(
+    observed: &[ObservedLine],
+    predictions: &Predictions,
+    config: &MatchConfig,
+) -> Vec<LineAssignment> {
+    assign_lines_with_progress(observed, predictions, config, &mut |_| {})
+}
+
+/// [`assign_lines`], calling `progress` every 65 536 lines and at the end.
+pub fn assign_lines_with_progress(
+    observed: &[ObservedLine],
+    predictions: &Predictions,
+    config: &MatchConfig,
+    progress: &mut dyn FnMut(MatchProgress),
+) -> Vec<LineAssignment> {
+    let index = CandidateIndex::new(predictions);
+    let mut cursor = index.cursor();
+    let mut hits = Vec::new();
+    let mut result = Vec::with_capacity(observed.len());
+    for (i, line) in observed.iter().enumerate() {
+        index.search(
+            &mut cursor,
+            line.wavenumber_cm1,
+            line.uncertainty_cm1,
+            config.tolerance_sigma,
+            &mut hits,
+        );
+        result.push(LineAssignment {
+            observed: i,
+            candidates: rank(line.wavenumber_cm1, &hits, &index, &mut cursor, config),
+        });
+        if (i + 1) % PROGRESS_EVERY == 0 {
+            progress(MatchProgress {
+                done: i + 1,
+                total: observed.len(),
+            });
+        }
+    }
+    progress(MatchProgress {
+        done: observed.len(),
+        total: observed.len(),
+    });
+    result
+}
+
+/// Candidates from the hits of one observed line, with chance probabilities, ranked.
+///
+/// The density is counted once per observed line, within ±W of σ_obs with
+/// W = F·k·max(u_c) over the line's candidates, so the window is at least F times
+/// every candidate's tolerance (see [`chance`]).
+fn rank(
+    sigma_obs: f64,
+    hits: &[Hit],
+    index: &CandidateIndex,
+    cursor: &mut Cursor,
+    config: &MatchConfig,
+) -> Vec<Candidate> {
+    let Some(span) = index.span() else {
+        return Vec::new();
+    };
+    let widest = hits
+        .iter()
+        .map(|h| h.combined_uncertainty_cm1)
+        .fold(0.0, f64::max);
+    let half_window = config.density_window_factor * config.tolerance_sigma * widest;
+    let in_window = index.count_between(cursor, sigma_obs - half_window, sigma_obs + half_window);
+    let length = chance::window_length(sigma_obs, half_window, span);
+    let penalty = config.rule_penalty_sigma;
+    let mut candidates: Vec<Candidate> = hits
+        .iter()
+        .map(|hit| {
+            let u_c = hit.combined_uncertainty_cm1;
+            let deviation_sigma = deviation_in_sigma(hit.deviation_cm1, u_c);
+            let broken = hit.broken_rules;
+            Candidate {
+                prediction: hit.line,
+                deviation_cm1: hit.deviation_cm1,
+                combined_uncertainty_cm1: u_c,
+                deviation_sigma,
+                ranking_sigma: if broken == 0 {
+                    deviation_sigma.abs()
+                } else {
+                    (deviation_sigma * deviation_sigma + f64::from(broken) * penalty * penalty)
+                        .sqrt()
+                },
+                chance_probability: chance::chance_probability(
+                    hit.deviation_cm1,
+                    u_c,
+                    in_window.saturating_sub(1),
+                    length,
+                ),
+            }
+        })
+        .collect();
+    // Unstable sort: the prediction index makes every key distinct, so the order
+    // is fully determined.
+    candidates.sort_unstable_by(|a, b| {
+        a.ranking_sigma
+            .total_cmp(&b.ranking_sigma)
+            .then(a.chance_probability.total_cmp(&b.chance_probability))
+            .then(a.prediction.cmp(&b.prediction))
+    });
+    candidates
+}
+
+/// Δ/u_c; 0 for an exact match with no uncertainty (never NaN).
+fn deviation_in_sigma(deviation: f64, u_c: f64) -> f64 {
+    if u_c > 0.0 {
+        deviation / u_c
+    } else if deviation == 0.0 {
+        0.0
+    } else {
+        f64::INFINITY.copysign(deviation)
+    }
+}
+
+#[cfg(test)]
+mod tests;

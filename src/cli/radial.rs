@@ -1,0 +1,608 @@
+//! `termsight radial`: orbitals and radial integrals of one or more configurations
+//! of an atom or ion, from a self-consistent field, in cm⁻¹.
+//!
+//! ```text
+//! termsight radial --element Mg --config "1s2 2s2 2p6 3s2" --config "1s2 2s2 2p6 3s 3p"
+//! ```
+//!
+//! prints, for each configuration, the orbital energies and mean radii, then every
+//! integral a level model needs (E_av differences, F^k, G^k, ζ, and between
+//! configurations R^k and ⟨a|r|b⟩), raw and scaled.
+
+use std::io::{self, IsTerminal, Write};
+use std::time::{Duration, Instant};
+
+use clap::ValueEnum;
+use comfy_table::{Cell, CellAlignment, Table, presets::UTF8_BORDERS_ONLY};
+use serde::Serialize;
+
+use crate::notation::{Configuration, Species, element};
+use crate::radial::integrals::mean_radius_bohr;
+use crate::radial::{
+    GridSpec, IntegralKind, RadialIntegral, ScaleFactors, ScfObserver, ScfOptions, ScfProgress,
+    ScfSolution, ScfStage, hartree_fock, local_exchange, radial_integrals, screened_hydrogenic,
+};
+use crate::units::constants::HARTREE_CM1;
+
+use super::CliError;
+
+/// Arguments of `termsight radial`.
+#[derive(Debug, Clone, clap::Args)]
+pub struct RadialArgs {
+    /// The element, by symbol (`Mg`, `Fe`), or a spectrum (`"Fe II"` = Fe⁺).
+    #[arg(long)]
+    pub element: String,
+    /// Charge of the ion: 0 for the neutral atom, 1 for Fe II, … [default: 0, or
+    /// what a spectrum given to --element says].
+    #[arg(long)]
+    pub charge: Option<u32>,
+    /// A configuration, written `1s2 2s2 2p6 3s 3p` or `1s2.2s2.2p6.3s.3p`, with
+    /// every electron of the ion. Repeat for more configurations; E_av differences
+    /// are taken from the first.
+    #[arg(long = "config", required = true, value_name = "CONFIGURATION")]
+    pub configurations: Vec<String>,
+    /// How the orbitals are obtained.
+    #[arg(long, value_enum, default_value_t = MethodChoice::HartreeFock)]
+    pub method: MethodChoice,
+    /// Scale factor for F^k and G^k (customary for neutral atoms: 0.8–0.9).
+    #[arg(long, default_value_t = 0.85)]
+    pub scale_slater: f64,
+    /// Scale factor for R^k between configurations.
+    #[arg(long, default_value_t = 0.85)]
+    pub scale_interaction: f64,
+    /// Scale factor for the spin–orbit parameters ζ.
+    #[arg(long, default_value_t = 1.0)]
+    pub scale_zeta: f64,
+    /// Scale factor for E_av differences.
+    #[arg(long, default_value_t = 1.0)]
+    pub scale_eav: f64,
+    /// Grid step h in ln(Z r) [default: 1/96].
+    #[arg(long, value_name = "H")]
+    pub grid_step: Option<f64>,
+    /// Largest radius of the grid, bohr; raised when an orbital needs more
+    /// [default: 100].
+    #[arg(long, value_name = "BOHR")]
+    pub r_max: Option<f64>,
+    /// Most self-consistent-field iterations per configuration.
+    #[arg(long, default_value_t = 200)]
+    pub max_iterations: u32,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Table)]
+    pub format: Format,
+    /// Print no progress lines on stderr.
+    #[arg(long)]
+    pub quiet: bool,
+}
+
+/// The methods offered by `--method`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum MethodChoice {
+    /// Hartree–Fock for the average energy of each configuration.
+    HartreeFock,
+    /// Hartree–Fock–Slater: local ρ^⅓ exchange with Latter's tail.
+    LocalExchange,
+    /// Hydrogenic orbitals with effective charges by Slater's rules.
+    Hydrogenic,
+}
+
+/// The output formats of `--format`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Format {
+    /// Tables for the terminal.
+    Table,
+    /// One JSON document.
+    Json,
+}
+
+/// Run `termsight radial`.
+pub fn run(args: RadialArgs) -> Result<(), CliError> {
+    let request = Request::from_args(&args)?;
+    let mut progress = Progress::new(args.quiet);
+    let report = compute(&request, &mut progress)?;
+    let text = match args.format {
+        Format::Table => render_table(&report),
+        Format::Json => render_json(&report)?,
+    };
+    let mut stdout = io::stdout().lock();
+    stdout
+        .write_all(text.as_bytes())
+        .and_then(|()| stdout.flush())
+        .map_err(|source| CliError::Io {
+            path: "<stdout>".into(),
+            source,
+        })
+}
+
+/// What the user asked for, checked.
+#[derive(Debug, Clone)]
+pub struct Request {
+    /// The ion.
+    pub species: Species,
+    /// The configurations, in the order given.
+    pub configurations: Vec<Configuration>,
+    /// The method.
+    pub method: MethodChoice,
+    /// Field settings.
+    pub options: ScfOptions,
+    /// Scale factors.
+    pub scales: ScaleFactors,
+}
+
+impl Request {
+    /// Check the arguments: the element, the charge, and each configuration's
+    /// electron count. Errors name the flag and the value.
+    pub fn from_args(args: &RadialArgs) -> Result<Request, CliError> {
+        let species = species(&args.element, args.charge)?;
+        let electrons = species.electron_count();
+        if electrons == 0 {
+            return Err(CliError::Message(format!(
+                "--charge {}: {} has no electrons left",
+                species.charge,
+                species.symbol()
+            )));
+        }
+        let mut configurations = Vec::with_capacity(args.configurations.len());
+        for text in &args.configurations {
+            let configuration: Configuration = text
+                .parse()
+                .map_err(|e| CliError::Message(format!("--config '{text}': {e}")))?;
+            let count = configuration.electron_count();
+            if count != electrons {
+                return Err(CliError::Message(format!(
+                    "--config '{text}': {count} electrons, but {species} has {electrons}"
+                )));
+            }
+            if configurations.contains(&configuration) {
+                return Err(CliError::Message(format!("--config '{text}': given twice")));
+            }
+            configurations.push(configuration);
+        }
+        let mut grid = GridSpec::default();
+        if let Some(step) = args.grid_step {
+            grid.step = step;
+        }
+        if let Some(r_max) = args.r_max {
+            grid.r_max_bohr = r_max;
+        }
+        crate::radial::RadialGrid::new(species.atomic_number as f64, grid)
+            .map_err(|e| CliError::Message(format!("--grid-step/--r-max: {e}")))?;
+        let options = ScfOptions {
+            grid,
+            max_iterations: args.max_iterations,
+            ..ScfOptions::default()
+        };
+        options
+            .validate()
+            .map_err(|e| CliError::Message(format!("--max-iterations: {e}")))?;
+        let scales = ScaleFactors {
+            direct_exchange: args.scale_slater,
+            interaction: args.scale_interaction,
+            spin_orbit: args.scale_zeta,
+            average_energy: args.scale_eav,
+        };
+        scales
+            .validate()
+            .map_err(|e| CliError::Message(format!("--scale-…: {e}")))?;
+        Ok(Request {
+            species,
+            configurations,
+            method: args.method,
+            options,
+            scales,
+        })
+    }
+}
+
+/// The ion named by `--element` (a symbol or a spectrum) and `--charge`.
+fn species(element_text: &str, charge: Option<u32>) -> Result<Species, CliError> {
+    let text = element_text.trim();
+    if let Some(z) = element::atomic_number(text) {
+        let charge = charge.unwrap_or(0);
+        if charge >= z {
+            return Err(CliError::Message(format!(
+                "--charge {charge}: {text} (Z = {z}) has at most charge {}",
+                z - 1
+            )));
+        }
+        return Ok(Species {
+            atomic_number: z,
+            charge,
+        });
+    }
+    let species: Species = text.parse().map_err(|e| {
+        CliError::Message(format!(
+            "--element '{text}': {e} (or give a bare symbol such as Fe, with --charge)"
+        ))
+    })?;
+    match charge {
+        Some(c) if c != species.charge => Err(CliError::Message(format!(
+            "--charge {c} contradicts --element '{text}' (charge {})",
+            species.charge
+        ))),
+        _ => Ok(species),
+    }
+}
+
+/// One configuration's result.
+#[derive(Debug, Clone, Serialize)]
+pub struct ConfigurationReport {
+    /// The configuration label.
+    pub configuration: String,
+    /// E_av, hartree.
+    pub total_energy_hartree: f64,
+    /// −V/T.
+    pub virial_ratio: f64,
+    /// Iterations used.
+    pub iterations: u32,
+    /// Last residual (see [`ScfSolution::residual`]).
+    pub residual: f64,
+    /// The orbitals.
+    pub orbitals: Vec<OrbitalReport>,
+}
+
+/// One orbital's numbers.
+#[derive(Debug, Clone, Serialize)]
+pub struct OrbitalReport {
+    /// Label, e.g. `3p`.
+    pub orbital: String,
+    /// Electrons in it.
+    pub occupancy: u32,
+    /// Orbital energy, hartree.
+    pub energy_hartree: f64,
+    /// Orbital energy, cm⁻¹.
+    pub energy_cm1: f64,
+    /// ⟨r⟩, bohr.
+    pub mean_radius_bohr: f64,
+}
+
+/// Everything `termsight radial` prints.
+#[derive(Debug, Clone, Serialize)]
+pub struct RadialReport {
+    /// The spectrum, e.g. `Mg I`.
+    pub species: String,
+    /// Atomic number.
+    pub atomic_number: u32,
+    /// The method's name.
+    pub method: String,
+    /// Grid step h.
+    pub grid_step: f64,
+    /// The scale factors used.
+    pub scales: ScaleFactors,
+    /// Per configuration.
+    pub configurations: Vec<ConfigurationReport>,
+    /// The radial integrals.
+    pub integrals: Vec<RadialIntegral>,
+}
+
+/// Solve every configuration and gather the integrals.
+pub fn compute(request: &Request, observer: &mut Progress) -> Result<RadialReport, CliError> {
+    let z = request.species.atomic_number;
+    let count = request.configurations.len();
+    let mut solutions: Vec<ScfSolution> = Vec::with_capacity(count);
+    for (index, configuration) in request.configurations.iter().enumerate() {
+        observer.label = format!("{} ({}/{count})", configuration, index + 1);
+        let solution = match request.method {
+            MethodChoice::HartreeFock => hartree_fock(z, configuration, &request.options, observer),
+            MethodChoice::LocalExchange => {
+                local_exchange(z, configuration, &request.options, observer)
+            }
+            MethodChoice::Hydrogenic => screened_hydrogenic(z, configuration, request.options.grid),
+        }
+        .map_err(|e| CliError::Message(format!("{} {configuration}: {e}", request.species)))?;
+        observer.finish(&solution);
+        solutions.push(solution);
+    }
+    let integrals = radial_integrals(&solutions, &request.scales)
+        .map_err(|e| CliError::Message(e.to_string()))?;
+    let configurations = solutions
+        .iter()
+        .map(|s| ConfigurationReport {
+            configuration: s.configuration.to_string(),
+            total_energy_hartree: s.energy.total_hartree,
+            virial_ratio: s.energy.virial_ratio(),
+            iterations: s.iterations,
+            residual: s.residual,
+            orbitals: s
+                .orbitals
+                .iter()
+                .map(|o| OrbitalReport {
+                    orbital: o.label(),
+                    occupancy: o.subshell.occupancy,
+                    energy_hartree: o.energy_hartree,
+                    energy_cm1: o.energy_hartree * HARTREE_CM1,
+                    mean_radius_bohr: mean_radius_bohr(&s.grid, &o.p),
+                })
+                .collect(),
+        })
+        .collect();
+    Ok(RadialReport {
+        species: request.species.to_string(),
+        atomic_number: z,
+        method: solutions
+            .first()
+            .map_or("", |s| s.method.name())
+            .to_string(),
+        grid_step: request.options.grid.step,
+        scales: request.scales,
+        configurations,
+        integrals,
+    })
+}
+
+/// Progress lines on stderr: nothing for runs shorter than half a second, then
+/// one line per iteration (rewritten in place on a terminal).
+#[derive(Debug)]
+pub struct Progress {
+    quiet: bool,
+    start: Instant,
+    label: String,
+    terminal: bool,
+    printed: bool,
+}
+
+impl Progress {
+    /// A progress printer; `quiet` silences it.
+    pub fn new(quiet: bool) -> Progress {
+        Progress {
+            quiet,
+            start: Instant::now(),
+            label: String::new(),
+            terminal: io::stderr().is_terminal(),
+            printed: false,
+        }
+    }
+
+    fn finish(&mut self, solution: &ScfSolution) {
+        if self.printed {
+            let mut stderr = io::stderr().lock();
+            let _ = writeln!(
+                stderr,
+                "{}termsight radial: {}: done, {} iterations",
+                if self.terminal { "\r\x1b[K" } else { "" },
+                self.label,
+                solution.iterations
+            );
+            self.printed = false;
+        }
+    }
+}
+
+impl ScfObserver for Progress {
+    fn iteration(&mut self, p: &ScfProgress) {
+        if self.quiet || self.start.elapsed() < Duration::from_millis(500) {
+            return;
+        }
+        let stage = match p.stage {
+            ScfStage::LocalExchange => "local exchange",
+            ScfStage::HartreeFock => "Hartree–Fock",
+        };
+        let line = format!(
+            "termsight radial: {}: {stage} iteration {}: E = {:.9} hartree, ΔE = {:.1e}, change {:.1e}",
+            self.label, p.iteration, p.total_energy_hartree, p.energy_change_hartree, p.residual
+        );
+        let mut stderr = io::stderr().lock();
+        let _ = if self.terminal {
+            write!(stderr, "\r\x1b[K{line}")
+        } else {
+            writeln!(stderr, "{line}")
+        };
+        let _ = stderr.flush();
+        self.printed = true;
+    }
+}
+
+/// The report as terminal tables.
+pub fn render_table(report: &RadialReport) -> String {
+    let mut out = String::new();
+    out.push_str(&format!(
+        "{} (Z = {}): {}; grid step h = {:.6} in ln(Z r)\n",
+        report.species, report.atomic_number, report.method, report.grid_step
+    ));
+    for c in &report.configurations {
+        out.push_str(&format!(
+            "\n{}: E_av = {:.9} hartree, −V/T = {:.9}, {} iterations, last change {:.1e}\n",
+            c.configuration, c.total_energy_hartree, c.virial_ratio, c.iterations, c.residual
+        ));
+        let mut table = new_table(&[
+            "orbital",
+            "electrons",
+            "ε (hartree)",
+            "ε (cm⁻¹)",
+            "⟨r⟩ (bohr)",
+        ]);
+        for o in &c.orbitals {
+            table.add_row(vec![
+                Cell::new(&o.orbital),
+                right(o.occupancy.to_string()),
+                right(format!("{:.8}", o.energy_hartree)),
+                right(format!("{:.2}", o.energy_cm1)),
+                right(format!("{:.6}", o.mean_radius_bohr)),
+            ]);
+        }
+        out.push_str(&table.to_string());
+        out.push('\n');
+    }
+    out.push_str(&format!(
+        "\nRadial integrals, cm⁻¹ (r(a,b) in bohr). Scale factors: F^k and G^k {}, R^k {}, \
+         ζ {}, E_av differences {}.\n",
+        report.scales.direct_exchange,
+        report.scales.interaction,
+        report.scales.spin_orbit,
+        report.scales.average_energy
+    ));
+    let mut table = new_table(&["integral", "configuration", "value", "scale", "scaled"]);
+    for i in &report.integrals {
+        let label = |index: usize| {
+            report
+                .configurations
+                .get(index)
+                .map_or(String::new(), |c| c.configuration.clone())
+        };
+        let configurations = match i.other_configuration {
+            Some(other) => format!("{} – {}", label(i.configuration), label(other)),
+            None => label(i.configuration),
+        };
+        let digits = if matches!(i.kind, IntegralKind::Dipole { .. }) {
+            6
+        } else {
+            3
+        };
+        table.add_row(vec![
+            Cell::new(&i.name),
+            Cell::new(configurations),
+            right(format!("{:.digits$}", i.value)),
+            right(format!("{}", i.scale)),
+            right(format!("{:.digits$}", i.scaled)),
+        ]);
+    }
+    out.push_str(&table.to_string());
+    out.push('\n');
+    out
+}
+
+fn new_table(header: &[&str]) -> Table {
+    let mut table = Table::new();
+    table
+        .load_style(UTF8_BORDERS_ONLY)
+        .set_header(header.to_vec());
+    table
+}
+
+fn right(text: String) -> Cell {
+    Cell::new(text).set_alignment(CellAlignment::Right)
+}
+
+/// The report as one JSON document.
+pub fn render_json(report: &RadialReport) -> Result<String, CliError> {
+    let mut text = serde_json::to_string_pretty(report)
+        .map_err(|e| CliError::Message(format!("cannot write JSON: {e}")))?;
+    text.push('\n');
+    Ok(text)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use clap::Parser;
+
+    fn args(list: &[&str]) -> RadialArgs {
+        #[derive(Parser)]
+        struct Wrapper {
+            #[command(flatten)]
+            args: RadialArgs,
+        }
+        let mut argv = vec!["radial"];
+        argv.extend_from_slice(list);
+        Wrapper::try_parse_from(argv)
+            .expect("the test arguments parse")
+            .args
+    }
+
+    #[test]
+    fn element_as_symbol_with_charge_or_as_spectrum() {
+        let a = Request::from_args(&args(&[
+            "--element",
+            "Fe",
+            "--charge",
+            "1",
+            "--config",
+            "1s2 2s2 2p6 3s2 3p6 3d6 4s",
+        ]))
+        .unwrap();
+        assert_eq!(a.species.to_string(), "Fe II");
+        let b = Request::from_args(&args(&[
+            "--element",
+            "Fe II",
+            "--config",
+            "1s2 2s2 2p6 3s2 3p6 3d6 4s",
+        ]))
+        .unwrap();
+        assert_eq!(b.species, a.species);
+    }
+
+    #[test]
+    fn errors_name_the_flag_and_value() {
+        let wrong_count =
+            Request::from_args(&args(&["--element", "Mg", "--config", "1s2 2s2 2p6 3s"]))
+                .unwrap_err()
+                .to_string();
+        assert!(
+            wrong_count.contains("--config '1s2 2s2 2p6 3s'"),
+            "{wrong_count}"
+        );
+        assert!(wrong_count.contains("11 electrons") && wrong_count.contains("Mg I has 12"));
+        let bad_element = Request::from_args(&args(&["--element", "Xx", "--config", "1s"]))
+            .unwrap_err()
+            .to_string();
+        assert!(bad_element.contains("--element 'Xx'"), "{bad_element}");
+        let contradiction = Request::from_args(&args(&[
+            "--element",
+            "Fe II",
+            "--charge",
+            "2",
+            "--config",
+            "1s",
+        ]))
+        .unwrap_err()
+        .to_string();
+        assert!(contradiction.contains("--charge 2"), "{contradiction}");
+        let unreadable = Request::from_args(&args(&["--element", "He", "--config", "1s2 2x"]))
+            .unwrap_err()
+            .to_string();
+        assert!(unreadable.contains("--config '1s2 2x'"), "{unreadable}");
+        let scale = Request::from_args(&args(&[
+            "--element",
+            "He",
+            "--config",
+            "1s2",
+            "--scale-zeta=-1",
+        ]))
+        .unwrap_err()
+        .to_string();
+        assert!(scale.contains("zeta"), "{scale}");
+        let step = Request::from_args(&args(&[
+            "--element",
+            "He",
+            "--config",
+            "1s2",
+            "--grid-step",
+            "0.5",
+        ]))
+        .unwrap_err()
+        .to_string();
+        assert!(step.contains("--grid-step"), "{step}");
+        let twice = Request::from_args(&args(&[
+            "--element",
+            "He",
+            "--config",
+            "1s2",
+            "--config",
+            "1s2",
+        ]))
+        .unwrap_err()
+        .to_string();
+        assert!(twice.contains("given twice"), "{twice}");
+    }
+
+    #[test]
+    fn table_and_json_hold_the_numbers() {
+        let request = Request::from_args(&args(&[
+            "--element",
+            "He",
+            "--config",
+            "1s 2s",
+            "--config",
+            "1s 2p",
+            "--method",
+            "hydrogenic",
+        ]))
+        .unwrap();
+        let report = compute(&request, &mut Progress::new(true)).unwrap();
+        let table = render_table(&report);
+        assert!(table.contains("He I (Z = 2)"));
+        assert!(table.contains("G0(1s,2s)") && table.contains("r(2s,2p)"));
+        let json: serde_json::Value = serde_json::from_str(&render_json(&report).unwrap()).unwrap();
+        assert_eq!(json["configurations"][0]["configuration"], "1s.2s");
+        assert_eq!(json["integrals"][1]["kind"], "exchange");
+    }
+}

@@ -1,0 +1,223 @@
+//! Electric-dipole (E1) selection rules between two labelled levels.
+//!
+//! Rigorous rules (any coupling): the parities differ, and ΔJ = 0, ±1 with J = 0 ↔ 0
+//! excluded. In LS coupling, in addition, ΔS = 0 and ΔL = 0, ±1 with L = 0 ↔ 0
+//! excluded; for pure configurations, one electron jumps with Δl = ±1 (Condon &
+//! Shortley 1935, ch. 9; Cowan 1981, *The Theory of Atomic Structure and Spectra*,
+//! § 14.3). The rigorous rules decide whether a pair of levels is a candidate at all
+//! ([`is_e1_candidate`]); the others only flag the line ([`classify`]), because
+//! spin–orbit mixing and configuration interaction let such lines through
+//! (intercombination lines, two-electron jumps).
+
+use std::fmt;
+
+use serde::{Deserialize, Serialize};
+
+use super::label::LevelLabel;
+use crate::notation::Term;
+
+/// Which selection rules, beyond the rigorous parity and J rules, were applied to a
+/// line.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Deserialize)]
+pub enum SelectionRules {
+    /// Both levels carry LS labels: ΔS = 0 and ΔL = 0, ±1 (not L = 0 ↔ 0) were
+    /// examined, and a line breaking them is flagged.
+    Ls,
+    /// At least one level is labelled in another coupling (pair or jj coupling, as
+    /// for the excited levels of Ne I and Ar I): the LS rules do not apply, so only
+    /// the parity and J rules were applied.
+    ParityAndJ,
+}
+
+impl SelectionRules {
+    /// Short name for outputs: `LS` or `parity+J`.
+    pub fn name(self) -> &'static str {
+        match self {
+            SelectionRules::Ls => "LS",
+            SelectionRules::ParityAndJ => "parity+J",
+        }
+    }
+
+    /// Parse a name printed by [`SelectionRules::name`].
+    pub fn from_name(name: &str) -> Option<SelectionRules> {
+        match name.trim() {
+            "LS" => Some(SelectionRules::Ls),
+            "parity+J" => Some(SelectionRules::ParityAndJ),
+            _ => None,
+        }
+    }
+}
+
+impl fmt::Display for SelectionRules {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(self.name())
+    }
+}
+
+/// What a predicted E1 line breaks of the non-rigorous rules.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
+pub struct TransitionFlags {
+    /// ΔS ≠ 0 between two LS-labelled levels: an intercombination (spin-forbidden)
+    /// line, seen through spin–orbit mixing (flag `intercombination`).
+    pub intercombination: bool,
+    /// |ΔL| > 1, or L = 0 ↔ 0, between two LS-labelled levels: forbidden in L in
+    /// pure LS coupling (flag `L-forbidden`).
+    pub l_forbidden: bool,
+    /// The configurations do not differ by one electron moving between subshells
+    /// with Δl = ±1 (flag `jump-forbidden`). Judged on the subshells written in the
+    /// labels, parent terms ignored; not judged when the two labels hold different
+    /// numbers of electrons (closed shells written in one and not the other).
+    pub jump_forbidden: bool,
+}
+
+/// Whether two levels may combine in an E1 line: opposite parity, and ΔJ = 0, ±1
+/// but not J = 0 ↔ 0.
+pub fn is_e1_candidate(a: &LevelLabel, b: &LevelLabel) -> bool {
+    let (ja, jb) = (a.j.twice, b.j.twice);
+    a.parity() != b.parity() && ja.abs_diff(jb) <= 2 && !(ja == 0 && jb == 0)
+}
+
+/// The rules applied to the line between `a` and `b` and the flags it earns (the
+/// order of the two levels does not matter). Call only for pairs that pass
+/// [`is_e1_candidate`].
+pub fn classify(a: &LevelLabel, b: &LevelLabel) -> (SelectionRules, TransitionFlags) {
+    let mut flags = TransitionFlags {
+        jump_forbidden: !one_electron_jump(a, b),
+        ..TransitionFlags::default()
+    };
+    let rules = match (&a.term, &b.term) {
+        (Term::Ls(ta), Term::Ls(tb)) => {
+            flags.intercombination = ta.multiplicity != tb.multiplicity;
+            flags.l_forbidden = ta.l.abs_diff(tb.l) > 1 || (ta.l == 0 && tb.l == 0);
+            SelectionRules::Ls
+        }
+        _ => SelectionRules::ParityAndJ,
+    };
+    (rules, flags)
+}
+
+/// True when the configurations differ by one electron moved from a subshell of l
+/// to one of l ± 1, or when that cannot be judged (different electron counts).
+fn one_electron_jump(a: &LevelLabel, b: &LevelLabel) -> bool {
+    let occupancy = |label: &LevelLabel| -> Vec<((u32, u32), i64)> {
+        label
+            .configuration
+            .subshells()
+            .map(|s| ((s.n, s.l), i64::from(s.occupancy)))
+            .collect()
+    };
+    let (occ_a, occ_b) = (occupancy(a), occupancy(b));
+    let total = |occ: &[((u32, u32), i64)]| occ.iter().map(|(_, n)| n).sum::<i64>();
+    if total(&occ_a) != total(&occ_b) {
+        return true;
+    }
+    // Net change of occupancy per subshell, b minus a.
+    let mut change: Vec<((u32, u32), i64)> = Vec::new();
+    for &(shell, n) in &occ_b {
+        change.push((shell, n));
+    }
+    for &(shell, n) in &occ_a {
+        match change.iter_mut().find(|(s, _)| *s == shell) {
+            Some((_, m)) => *m -= n,
+            None => change.push((shell, -n)),
+        }
+    }
+    change.retain(|(_, n)| *n != 0);
+    match change.as_slice() {
+        [(s1, n1), (s2, n2)] if n1.abs() == 1 && *n1 == -n2 => s1.1.abs_diff(s2.1) == 1,
+        _ => false,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn label(text: &str) -> LevelLabel {
+        text.parse().unwrap()
+    }
+
+    #[test]
+    fn rigorous_rules() {
+        // Parity must change; ΔJ = 0, ±1; not 0–0 (Condon & Shortley 1935, ch. 9).
+        let s0 = label("1s2 1S 0");
+        assert!(is_e1_candidate(&s0, &label("1s.2p 1P° 1")));
+        assert!(is_e1_candidate(&s0, &label("1s.2p 3P° 1")));
+        assert!(!is_e1_candidate(&s0, &label("1s.2p 3P° 0")), "0–0");
+        assert!(!is_e1_candidate(&s0, &label("1s.2p 3P° 2")), "ΔJ = 2");
+        assert!(!is_e1_candidate(&s0, &label("1s.2s 1S 0")), "same parity");
+        assert!(is_e1_candidate(&label("2p 2P° 3/2"), &label("3d 2D 5/2")));
+        assert!(!is_e1_candidate(&label("2p 2P° 1/2"), &label("3d 2D 5/2")));
+    }
+
+    #[test]
+    fn helium_1083_nm_group_is_ls_allowed() {
+        // He I 2s 3S1 – 2p 3P°0,1,2 (the 1083 nm triplet): ΔS = 0, ΔL = 1, one
+        // electron 2s → 2p (a textbook allowed multiplet).
+        for j in 0..=2 {
+            let (rules, flags) = classify(&label("1s.2s 3S 1"), &label(&format!("1s.2p 3P° {j}")));
+            assert_eq!(rules, SelectionRules::Ls);
+            assert_eq!(flags, TransitionFlags::default());
+        }
+    }
+
+    #[test]
+    fn helium_59_nm_line_is_an_intercombination_line() {
+        // He I 1s2 1S0 – 1s2p 3P°1: ΔS = 1, the spin-forbidden line near 59.1 nm.
+        let (rules, flags) = classify(&label("1s2 1S 0"), &label("1s.2p 3P° 1"));
+        assert_eq!(rules, SelectionRules::Ls);
+        assert!(flags.intercombination && !flags.l_forbidden && !flags.jump_forbidden);
+    }
+
+    #[test]
+    fn l_forbidden_lines() {
+        // ΔL = 2 (S–D) and L = 0 ↔ 0 (S–S) break the LS rule on L.
+        let (_, ps) = classify(&label("1s.2p 1P° 1"), &label("1s.3s 1S 0"));
+        assert!(!ps.l_forbidden); // P–S: ΔL = 1
+        let (_, ss) = classify(&label("1s.2p 1P° 1"), &label("1s.2s 3S 1"));
+        assert!(ss.intercombination && !ss.l_forbidden);
+        // S ↔ S° (labels made up to exercise the rule): L = 0 ↔ 0 is forbidden.
+        let (_, s0) = classify(&label("2s2.2p3 4S° 3/2"), &label("2s2.2p2.3s 4S 3/2"));
+        assert!(s0.l_forbidden && !s0.intercombination && !s0.jump_forbidden);
+        let (_, f) = classify(&label("1s.2s 3S 1"), &label("1s.4f 3F° 2"));
+        assert!(f.l_forbidden && f.jump_forbidden); // S–F, and s → f is Δl = 3
+        let (_, pp) = classify(&label("2p2 3P 1"), &label("2p.3s 3P° 1"));
+        assert!(!pp.l_forbidden && !pp.jump_forbidden); // ΔL = 0 is allowed; 2p → 3s
+    }
+
+    #[test]
+    fn two_electron_jumps_are_flagged() {
+        // 6s7s → 6p2 moves two electrons (Hg I labels).
+        let (_, f) = classify(&label("5d10.6s.7s 3S 1"), &label("5d10.6s.6p 3P° 1"));
+        assert!(!f.jump_forbidden); // 7s → 6p
+        let (_, f) = classify(
+            &label("5d10.6p2 3P 1"),
+            &label("5d9.6s2.(2D<5/2>).6p 2[3/2]° 1"),
+        );
+        assert!(f.jump_forbidden); // 6p2 → 5d9 6s2 6p: two electrons move
+    }
+
+    #[test]
+    fn pair_coupled_labels_get_parity_and_j_rules_only() {
+        // Ne I: 2p5 3p 2[1/2] 1 – 2p5 3s 2[3/2]° 2 (pair coupling, no LS rules).
+        let (rules, flags) = classify(
+            &label("2s2.2p5.(2P°<3/2>).3p 2[1/2] 1"),
+            &label("2s2.2p5.(2P°<3/2>).3s 2[3/2]° 2"),
+        );
+        assert_eq!(rules, SelectionRules::ParityAndJ);
+        assert_eq!(flags, TransitionFlags::default());
+        // One LS label and one pair label: still no LS rules.
+        let (rules, _) = classify(
+            &label("2s2.2p6 1S 0"),
+            &label("2s2.2p5.(2P°<3/2>).3s 2[3/2]° 1"),
+        );
+        assert_eq!(rules, SelectionRules::ParityAndJ);
+    }
+
+    #[test]
+    fn rule_names_round_trip() {
+        for rules in [SelectionRules::Ls, SelectionRules::ParityAndJ] {
+            assert_eq!(SelectionRules::from_name(rules.name()), Some(rules));
+        }
+    }
+}

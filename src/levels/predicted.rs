@@ -1,0 +1,272 @@
+//! Predicted lines: the input of the matcher, whatever made them.
+//!
+//! A [`Predictions`] set holds levels and the E1 lines between them, sorted by
+//! vacuum wavenumber. Lines refer to their levels by index into the set, so a
+//! million lines cost tens of megabytes, not a copy of two labels each. The set
+//! also records, per species, where the predictions come from, the per-species
+//! model uncertainty the matcher adds in quadrature (0 for Ritz predictions from a
+//! level table), and which selection rules were applied.
+
+use serde::{Deserialize, Serialize};
+
+use super::e1::{SelectionRules, TransitionFlags};
+use super::table::Level;
+use crate::notation::Species;
+
+/// One predicted line between two levels of a [`Predictions`] set.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct PredictedLine {
+    /// The spectrum.
+    pub species: Species,
+    /// Index of the lower level in [`Predictions::levels`].
+    pub lower: usize,
+    /// Index of the upper level in [`Predictions::levels`].
+    pub upper: usize,
+    /// Vacuum wavenumber σ, cm⁻¹ (> 0).
+    pub wavenumber_cm1: f64,
+    /// Standard uncertainty of σ, cm⁻¹, without the per-species model uncertainty.
+    pub uncertainty_cm1: f64,
+    /// Which selection rules were applied.
+    pub rules: SelectionRules,
+    /// Which of those rules the line breaks.
+    pub flags: TransitionFlags,
+    /// Relative line strength (any scale, comparable within a species), when the
+    /// source of the predictions gives one; `None` for Ritz predictions.
+    pub relative_strength: Option<f64>,
+}
+
+/// Where the predictions of one species come from, and what was applied.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct SpeciesSummary {
+    /// The spectrum.
+    pub species: Species,
+    /// Where the predictions come from, e.g. `Ritz wavenumbers from <embedded He I>`.
+    pub origin: String,
+    /// Standard uncertainty of the model, cm⁻¹, added in quadrature to the
+    /// uncertainty of every line of this species when matching (0 for Ritz
+    /// predictions from a level table).
+    pub model_uncertainty_cm1: f64,
+    /// Number of levels of the species in the set.
+    pub levels: usize,
+    /// Lines between two LS-labelled levels ([`SelectionRules::Ls`]).
+    pub ls_lines: usize,
+    /// Lines where at least one label is in another coupling
+    /// ([`SelectionRules::ParityAndJ`]).
+    pub parity_and_j_lines: usize,
+}
+
+impl SpeciesSummary {
+    /// One sentence on the rules applied, for output headers, e.g. `LS rules for all
+    /// 1234 lines` or `parity and J only for 5678 lines (labels in pair coupling), LS
+    /// rules for 12`.
+    pub fn rules_sentence(&self) -> String {
+        match (self.ls_lines, self.parity_and_j_lines) {
+            (0, 0) => "no lines".into(),
+            (ls, 0) => format!("LS rules (ΔS = 0, ΔL = 0, ±1) examined for all {ls} lines"),
+            (0, other) => {
+                format!("parity and J rules only for all {other} lines (labels not in LS coupling)")
+            }
+            (ls, other) => format!(
+                "LS rules examined for {ls} lines between LS labels; parity and J rules only \
+                 for {other} lines with labels in another coupling"
+            ),
+        }
+    }
+}
+
+/// A set of levels and the lines predicted between them, sorted by wavenumber.
+#[derive(Debug, Clone, PartialEq, Default, Serialize, Deserialize)]
+pub struct Predictions {
+    levels: Vec<Level>,
+    lines: Vec<PredictedLine>,
+    species: Vec<SpeciesSummary>,
+}
+
+/// Lines and levels that do not make a valid [`Predictions`] set.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[non_exhaustive]
+pub enum PredictionError {
+    /// A line refers to a level that is not in the set, or of another species.
+    #[error("predicted line {line}: level index {index} is not a level of {species}")]
+    BadLevel {
+        /// Index of the line as given.
+        line: usize,
+        /// The level index.
+        index: usize,
+        /// The line's species.
+        species: Species,
+    },
+    /// A wavenumber that is not finite and positive, or an uncertainty that is not
+    /// finite and ≥ 0.
+    #[error("predicted line {line}: {problem}")]
+    BadNumber {
+        /// Index of the line as given.
+        line: usize,
+        /// What is wrong.
+        problem: String,
+    },
+    /// A species whose origin is not described, or described twice, or a bad
+    /// model uncertainty.
+    #[error("species {species}: {problem}")]
+    BadSpecies {
+        /// The species.
+        species: Species,
+        /// What is wrong.
+        problem: String,
+    },
+}
+
+/// Where the predictions of one species come from: the input to
+/// [`Predictions::new`] from which [`SpeciesSummary`] is computed.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SpeciesOrigin {
+    /// The spectrum.
+    pub species: Species,
+    /// Where its predictions come from.
+    pub origin: String,
+    /// Model uncertainty, cm⁻¹ (finite, ≥ 0); 0 for a level table.
+    pub model_uncertainty_cm1: f64,
+}
+
+impl Predictions {
+    /// A checked set: every line's levels exist and belong to its species, numbers
+    /// are finite (σ > 0, uncertainties ≥ 0), every species of a level has exactly
+    /// one origin. The lines are sorted by wavenumber (stable, so equal wavenumbers
+    /// keep the given order).
+    pub fn new(
+        levels: Vec<Level>,
+        mut lines: Vec<PredictedLine>,
+        origins: Vec<SpeciesOrigin>,
+    ) -> Result<Predictions, PredictionError> {
+        for (i, line) in lines.iter().enumerate() {
+            for index in [line.lower, line.upper] {
+                if levels.get(index).is_none_or(|l| l.species != line.species) {
+                    return Err(PredictionError::BadLevel {
+                        line: i,
+                        index,
+                        species: line.species,
+                    });
+                }
+            }
+            if !(line.wavenumber_cm1.is_finite() && line.wavenumber_cm1 > 0.0) {
+                return Err(PredictionError::BadNumber {
+                    line: i,
+                    problem: format!("wavenumber {} cm-1 is not positive", line.wavenumber_cm1),
+                });
+            }
+            if !(line.uncertainty_cm1.is_finite() && line.uncertainty_cm1 >= 0.0) {
+                return Err(PredictionError::BadNumber {
+                    line: i,
+                    problem: format!("uncertainty {} cm-1 is not ≥ 0", line.uncertainty_cm1),
+                });
+            }
+        }
+        let mut species: Vec<SpeciesSummary> = Vec::new();
+        for origin in origins {
+            if species.iter().any(|s| s.species == origin.species) {
+                return Err(PredictionError::BadSpecies {
+                    species: origin.species,
+                    problem: "its origin is given twice".into(),
+                });
+            }
+            if !(origin.model_uncertainty_cm1.is_finite() && origin.model_uncertainty_cm1 >= 0.0) {
+                return Err(PredictionError::BadSpecies {
+                    species: origin.species,
+                    problem: format!(
+                        "model uncertainty {} cm-1 is not ≥ 0",
+                        origin.model_uncertainty_cm1
+                    ),
+                });
+            }
+            species.push(SpeciesSummary {
+                species: origin.species,
+                origin: origin.origin,
+                model_uncertainty_cm1: origin.model_uncertainty_cm1,
+                levels: 0,
+                ls_lines: 0,
+                parity_and_j_lines: 0,
+            });
+        }
+        for level in &levels {
+            let summary = species
+                .iter_mut()
+                .find(|s| s.species == level.species)
+                .ok_or_else(|| PredictionError::BadSpecies {
+                    species: level.species,
+                    problem: "it has levels but no origin".into(),
+                })?;
+            summary.levels += 1;
+        }
+        for line in &lines {
+            if let Some(summary) = species.iter_mut().find(|s| s.species == line.species) {
+                match line.rules {
+                    SelectionRules::Ls => summary.ls_lines += 1,
+                    SelectionRules::ParityAndJ => summary.parity_and_j_lines += 1,
+                }
+            }
+        }
+        lines.sort_by(|a, b| a.wavenumber_cm1.total_cmp(&b.wavenumber_cm1));
+        Ok(Predictions {
+            levels,
+            lines,
+            species,
+        })
+    }
+
+    /// Join sets of different species into one (levels renumbered, lines merged in
+    /// wavenumber order). A species in two sets is an error.
+    pub fn combine(
+        sets: impl IntoIterator<Item = Predictions>,
+    ) -> Result<Predictions, PredictionError> {
+        let mut levels = Vec::new();
+        let mut lines = Vec::new();
+        let mut origins = Vec::new();
+        for set in sets {
+            let offset = levels.len();
+            levels.extend(set.levels);
+            lines.extend(set.lines.into_iter().map(|line| PredictedLine {
+                lower: line.lower + offset,
+                upper: line.upper + offset,
+                ..line
+            }));
+            origins.extend(set.species.into_iter().map(|s| SpeciesOrigin {
+                species: s.species,
+                origin: s.origin,
+                model_uncertainty_cm1: s.model_uncertainty_cm1,
+            }));
+        }
+        Predictions::new(levels, lines, origins)
+    }
+
+    /// The lines, sorted by increasing wavenumber.
+    pub fn lines(&self) -> &[PredictedLine] {
+        &self.lines
+    }
+
+    /// The levels the lines refer to.
+    pub fn levels(&self) -> &[Level] {
+        &self.levels
+    }
+
+    /// One summary per species, in the order the origins were given.
+    pub fn species(&self) -> &[SpeciesSummary] {
+        &self.species
+    }
+
+    /// The summary of `species`, if the set has it.
+    pub fn summary(&self, species: Species) -> Option<&SpeciesSummary> {
+        self.species.iter().find(|s| s.species == species)
+    }
+
+    /// The model uncertainty of `species`, cm⁻¹ (0 if the set does not have it).
+    pub fn model_uncertainty_cm1(&self, species: Species) -> f64 {
+        self.summary(species)
+            .map_or(0.0, |s| s.model_uncertainty_cm1)
+    }
+
+    /// The lower and upper levels of a line of this set (`None` for a line of
+    /// another set with indices out of range).
+    pub fn levels_of(&self, line: &PredictedLine) -> Option<(&Level, &Level)> {
+        Some((self.levels.get(line.lower)?, self.levels.get(line.upper)?))
+    }
+}

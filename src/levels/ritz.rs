@@ -1,0 +1,147 @@
+//! Ritz predictions: every E1 line between the levels of a table, its wavenumber the
+//! difference of the two level energies (the Ritz combination principle).
+
+use super::e1::{classify, is_e1_candidate};
+use super::predicted::{PredictedLine, PredictionError, Predictions, SpeciesOrigin};
+use super::table::{Level, LevelTable};
+
+/// The Ritz wavenumber of the line between two levels and its standard uncertainty,
+/// cm⁻¹: σ = E_upper − E_lower, u(σ) = √(u_lower² + u_upper²).
+///
+/// The uncertainty treats the two level energies as uncorrelated. Levels that come
+/// out of one least-squares optimisation are correlated (usually positively, so
+/// that differences are better known than this); without the covariances, the
+/// quadrature sum is the conservative choice (GUM, JCGM 100:2008, eq. 10).
+pub fn ritz_wavenumber(lower: &Level, upper: &Level) -> (f64, f64) {
+    (
+        upper.energy_cm1 - lower.energy_cm1,
+        lower.uncertainty_cm1.hypot(upper.uncertainty_cm1),
+    )
+}
+
+/// Predict the E1 lines of every species in `table`.
+///
+/// Every pair of levels of one species with opposite parity and ΔJ = 0, ±1 (not
+/// 0 ↔ 0) gives a line (see [`super::e1`]); the higher level is the upper one.
+/// Pairs of equal energy give no line. Each line is classified with
+/// [`super::e1::classify`]: LS rules where both labels are LS, parity and J rules
+/// only otherwise; intercombination, L-forbidden and jump-forbidden lines are kept
+/// and flagged. The result is sorted by wavenumber; its species origins read
+/// `Ritz wavenumbers from <table source>`, with no model uncertainty.
+///
+/// The work is O(n²) in the number of levels of each species (25 000 pairs for the
+/// 223 levels of Ne I).
+///
+/// Fails only for a table built by hand with non-finite numbers (a table read by
+/// [`super::read_level_table`] always gives a valid set).
+pub fn predict_from_table(table: &LevelTable) -> Result<Predictions, PredictionError> {
+    let mut lines = Vec::new();
+    for species in table.species() {
+        let indices: Vec<usize> = (0..table.levels.len())
+            .filter(|&i| table.levels.get(i).is_some_and(|l| l.species == species))
+            .collect();
+        for (n, &i) in indices.iter().enumerate() {
+            for &k in indices.iter().skip(n + 1) {
+                let (Some(a), Some(b)) = (table.levels.get(i), table.levels.get(k)) else {
+                    continue;
+                };
+                if !is_e1_candidate(&a.label, &b.label) || a.energy_cm1 == b.energy_cm1 {
+                    continue;
+                }
+                let ((lower, lower_level), (upper, upper_level)) = if a.energy_cm1 < b.energy_cm1 {
+                    ((i, a), (k, b))
+                } else {
+                    ((k, b), (i, a))
+                };
+                let (wavenumber_cm1, uncertainty_cm1) = ritz_wavenumber(lower_level, upper_level);
+                let (rules, flags) = classify(&lower_level.label, &upper_level.label);
+                lines.push(PredictedLine {
+                    species,
+                    lower,
+                    upper,
+                    wavenumber_cm1,
+                    uncertainty_cm1,
+                    rules,
+                    flags,
+                    relative_strength: None,
+                });
+            }
+        }
+    }
+    let origins = table
+        .species()
+        .into_iter()
+        .map(|species| SpeciesOrigin {
+            species,
+            origin: format!("Ritz wavenumbers from {}", table.source),
+            model_uncertainty_cm1: 0.0,
+        })
+        .collect();
+    Predictions::new(table.levels.clone(), lines, origins)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::levels::{SelectionRules, embedded::EMBEDDED_TABLES, read_level_table};
+
+    fn table(body: &str) -> LevelTable {
+        let text =
+            format!("species,configuration,term,J,energy_cm1,uncertainty_cm1,source\n{body}");
+        read_level_table(text.as_bytes(), "t.csv").unwrap()
+    }
+
+    #[test]
+    fn pairs_follow_the_rigorous_rules_and_are_sorted() {
+        // He I 1s2 1S0, 1s2s 3S1, 1s2p 3P°0,1,2 (NIST ASD 2014 energies).
+        let t = table(
+            "He I,1s2,1S,0,0,0,x\n\
+             He I,1s.2s,3S,1,159855.9743297,0.0000001,x\n\
+             He I,1s.2p,3P*,2,169086.7664725,0.0000001,x\n\
+             He I,1s.2p,3P*,1,169086.8428979,0.0000001,x\n\
+             He I,1s.2p,3P*,0,169087.8308131,0.0000001,x\n",
+        );
+        let p = predict_from_table(&t).unwrap();
+        // 2s 3S1 combines with 3P°0,1,2; the ground 1S0 only with 3P°1.
+        assert_eq!(p.lines().len(), 4);
+        let sigmas: Vec<f64> = p.lines().iter().map(|l| l.wavenumber_cm1).collect();
+        assert!(sigmas.windows(2).all(|w| w[0] <= w[1]));
+        let last = p.lines().last().unwrap();
+        let (lower, upper) = p.levels_of(last).unwrap();
+        assert_eq!(lower.label.to_string(), "1s2 1S 0");
+        assert_eq!(upper.label.to_string(), "1s.2p 3P° 1");
+        assert!(last.flags.intercombination);
+        assert!((last.uncertainty_cm1 - 1e-7).abs() < 1e-15);
+        let first = &p.lines()[0];
+        assert!((first.wavenumber_cm1 - (169086.7664725 - 159855.9743297)).abs() < 1e-9);
+        assert!((first.uncertainty_cm1 - 1e-7 * 2f64.sqrt()).abs() < 1e-15);
+        assert_eq!(p.species()[0].ls_lines, 4);
+    }
+
+    #[test]
+    fn every_embedded_species_predicts_lines_with_the_right_rules() {
+        for embedded in EMBEDDED_TABLES {
+            let t = embedded.load().unwrap();
+            let p = predict_from_table(&t).unwrap();
+            let summary = &p.species()[0];
+            assert!(!p.lines().is_empty(), "{}", embedded.species);
+            assert_eq!(summary.levels, t.levels.len());
+            match embedded.species {
+                // Ne I and Ar I excited levels are in pair coupling; only the ground
+                // level is LS (NIST ASD 2014 labels), so no line is between two LS labels.
+                "Ne I" | "Ar I" => assert_eq!(summary.ls_lines, 0, "{}", embedded.species),
+                // Hg I mixes LS labels and pair-coupled 5d9 6s2 nl levels.
+                "Hg I" => assert!(summary.ls_lines > 0 && summary.parity_and_j_lines > 0),
+                _ => assert_eq!(summary.parity_and_j_lines, 0, "{}", embedded.species),
+            }
+            for line in p.lines() {
+                let (lower, upper) = p.levels_of(line).unwrap();
+                assert!(lower.energy_cm1 < upper.energy_cm1);
+                assert_ne!(lower.label.parity(), upper.label.parity());
+                if line.rules == SelectionRules::ParityAndJ {
+                    assert!(!line.flags.intercombination && !line.flags.l_forbidden);
+                }
+            }
+        }
+    }
+}

@@ -1,0 +1,594 @@
+//! The radial integrals a level model needs, by name, in cm⁻¹, computed from the
+//! orbitals of one or more configurations.
+//!
+//! | kind | name | from |
+//! |---|---|---|
+//! | E_av | `Eav` | E_av of the configuration minus E_av of the first one |
+//! | F^k | `F2(3p)` (within a subshell), `F2(3d,4p)` | open subshells of one configuration, k > 0 |
+//! | G^k | `G1(3s,3p)` | two open subshells of one configuration, every allowed k |
+//! | ζ | `zeta(3p)` | open subshells with l > 0 |
+//! | R^k | `R1(3s3s,3p3p)` | two configurations of one parity that differ by one or two electrons |
+//! | ⟨a\|r\|b⟩ | `r(3s,3p)` | two configurations of opposite parity that differ by one electron (bohr) |
+//!
+//! A subshell is open when it is not full. F^k(a,a) is listed for l^w with
+//! 2 ≤ w ≤ 4l (only those have terms that it separates). For R^k between
+//! configurations, the orbitals of the first configuration stand on the left
+//! (a, b) and those of the second on the right (c, d), each from its own
+//! calculation.
+//!
+//! The spin–orbit parameter is the central-field formula
+//! ζ_nl = (α²/2) ∫ (1/r)(dV/dr) P² dr (Condon & Shortley 1935, §5.4; Cowan 1981,
+//! eq. 10.9) with V the potential of the nucleus and of the other electrons'
+//! charge (exchange left out): by Gauss's law dV/dr = [Z − N(r)]/r², N(r) the
+//! number of other electrons inside r. Blume–Watson's fuller treatment is not
+//! made.
+//!
+//! Scale factors multiply each kind (common practice, no source: 0.8–0.9 for F^k
+//! and G^k of neutral atoms, about 1 for ζ and E_av differences).
+
+use std::collections::BTreeMap;
+
+use crate::notation::{Configuration, Subshell};
+use crate::units::constants::{FINE_STRUCTURE_ALPHA, HARTREE_CM1};
+
+use super::RadialError;
+use super::average::{direct_orders, exchange_orders};
+use super::grid::RadialGrid;
+use super::scf::ScfSolution;
+use super::slater::{rk_integral, zk_function};
+use super::three_j::three_j_zero_squared;
+
+/// What a radial integral is.
+#[derive(Debug, Clone, PartialEq, Eq, serde::Serialize)]
+#[serde(tag = "kind", rename_all = "kebab-case")]
+pub enum IntegralKind {
+    /// E_av of a configuration relative to the first configuration.
+    AverageEnergy,
+    /// F^k(a, b), a and b in one configuration.
+    Direct {
+        /// The multipole order.
+        k: u32,
+        /// First orbital label.
+        a: String,
+        /// Second orbital label.
+        b: String,
+    },
+    /// G^k(a, b), a and b in one configuration.
+    Exchange {
+        /// The multipole order.
+        k: u32,
+        /// First orbital label.
+        a: String,
+        /// Second orbital label.
+        b: String,
+    },
+    /// R^k(ab, cd): a, b of the first configuration, c, d of the second.
+    Interaction {
+        /// The multipole order.
+        k: u32,
+        /// Orbital a (first configuration, electron 1).
+        a: String,
+        /// Orbital b (first configuration, electron 2).
+        b: String,
+        /// Orbital c (second configuration, electron 1).
+        c: String,
+        /// Orbital d (second configuration, electron 2).
+        d: String,
+    },
+    /// ζ of an orbital.
+    SpinOrbit {
+        /// The orbital label.
+        orbital: String,
+    },
+    /// ⟨a|r|b⟩ between configurations, bohr.
+    Dipole {
+        /// Orbital of the first configuration.
+        a: String,
+        /// Orbital of the second configuration.
+        b: String,
+    },
+}
+
+/// One radial integral, ready for a level model.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct RadialIntegral {
+    /// Its name, e.g. `F2(3p,3p)`.
+    pub name: String,
+    /// What it is.
+    #[serde(flatten)]
+    pub kind: IntegralKind,
+    /// The configuration it belongs to (its index in the list given).
+    pub configuration: usize,
+    /// The second configuration of an R^k or dipole integral.
+    pub other_configuration: Option<usize>,
+    /// The computed value: cm⁻¹, or bohr for a dipole integral.
+    pub value: f64,
+    /// The scale factor applied.
+    pub scale: f64,
+    /// value × scale.
+    pub scaled: f64,
+}
+
+/// Scale factors for the computed integrals. Defaults are the customary starting
+/// values for a neutral atom (common practice, no source).
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+pub struct ScaleFactors {
+    /// For F^k and G^k. Default: 0.85.
+    pub direct_exchange: f64,
+    /// For R^k between configurations. Default: 0.85.
+    pub interaction: f64,
+    /// For ζ. Default: 1.0.
+    pub spin_orbit: f64,
+    /// For E_av differences. Default: 1.0.
+    pub average_energy: f64,
+}
+
+impl Default for ScaleFactors {
+    fn default() -> Self {
+        ScaleFactors {
+            direct_exchange: 0.85,
+            interaction: 0.85,
+            spin_orbit: 1.0,
+            average_energy: 1.0,
+        }
+    }
+}
+
+impl ScaleFactors {
+    /// Check that every factor lies in (0, 2].
+    pub fn validate(&self) -> Result<(), RadialError> {
+        for (name, value) in [
+            ("F^k/G^k", self.direct_exchange),
+            ("R^k", self.interaction),
+            ("zeta", self.spin_orbit),
+            ("E_av", self.average_energy),
+        ] {
+            if !(value > 0.0 && value <= 2.0) {
+                return Err(RadialError::InvalidSettings {
+                    problem: format!("the {name} scale factor must lie in (0, 2], not {value}"),
+                });
+            }
+        }
+        Ok(())
+    }
+}
+
+/// ζ of orbital `index` of a solution, hartree, by the central-field formula
+/// (see the module documentation). 0 for s orbitals.
+pub fn spin_orbit_hartree(solution: &ScfSolution, index: usize) -> f64 {
+    let orbital = &solution.orbitals[index];
+    if orbital.subshell.l == 0 {
+        return 0.0;
+    }
+    let grid = &solution.grid;
+    let mut enclosed = vec![0.0; grid.len()];
+    for (b, other) in solution.orbitals.iter().enumerate() {
+        let count = other.subshell.occupancy as f64 - if b == index { 1.0 } else { 0.0 };
+        if count == 0.0 {
+            continue;
+        }
+        let charge = zk_function(grid, 0, &other.p, &other.p);
+        for (e, c) in enclosed.iter_mut().zip(&charge) {
+            *e += count * c;
+        }
+    }
+    let z = solution.nuclear_charge as f64;
+    let integrand: Vec<f64> = grid
+        .r()
+        .iter()
+        .zip(&enclosed)
+        .zip(&orbital.p)
+        .map(|((r, n), p)| (z - n) / (r * r * r) * p * p)
+        .collect();
+    0.5 * FINE_STRUCTURE_ALPHA * FINE_STRUCTURE_ALPHA * grid.integrate(&integrand)
+}
+
+/// ⟨r⟩ of an orbital, bohr.
+pub fn mean_radius_bohr(grid: &RadialGrid, p: &[f64]) -> f64 {
+    grid.integrate_product_power(p, p, 1)
+}
+
+/// Every integral of the module table for the configurations solved in
+/// `solutions` (same element, same grid step and start), scaled by `scales`.
+pub fn radial_integrals(
+    solutions: &[ScfSolution],
+    scales: &ScaleFactors,
+) -> Result<Vec<RadialIntegral>, RadialError> {
+    scales.validate()?;
+    let Some(first) = solutions.first() else {
+        return Ok(Vec::new());
+    };
+    for s in solutions {
+        if s.nuclear_charge != first.nuclear_charge
+            || s.grid.step() != first.grid.step()
+            || s.grid.x_start() != first.grid.x_start()
+        {
+            return Err(RadialError::InvalidGrid {
+                problem: "the configurations were computed for different atoms or grids".into(),
+            });
+        }
+    }
+    let mut out = Vec::new();
+    let mut push = |name: String,
+                    kind: IntegralKind,
+                    configuration: usize,
+                    other: Option<usize>,
+                    value: f64,
+                    scale: f64| {
+        out.push(RadialIntegral {
+            name,
+            kind,
+            configuration,
+            other_configuration: other,
+            value,
+            scale,
+            scaled: value * scale,
+        })
+    };
+    for (index, solution) in solutions.iter().enumerate() {
+        push(
+            "Eav".to_string(),
+            IntegralKind::AverageEnergy,
+            index,
+            None,
+            (solution.energy.total_hartree - first.energy.total_hartree) * HARTREE_CM1,
+            scales.average_energy,
+        );
+        let grid = &solution.grid;
+        let orbitals = &solution.orbitals;
+        let open: Vec<usize> = (0..orbitals.len())
+            .filter(|&i| !orbitals[i].subshell.is_closed())
+            .collect();
+        for (position, &a) in open.iter().enumerate() {
+            let shell = orbitals[a].subshell;
+            let pa = &orbitals[a].p;
+            let label_a = orbitals[a].label();
+            if shell.occupancy >= 2 && shell.occupancy <= 4 * shell.l {
+                for k in direct_orders(shell.l) {
+                    push(
+                        format!("F{k}({label_a})"),
+                        IntegralKind::Direct {
+                            k,
+                            a: label_a.clone(),
+                            b: label_a.clone(),
+                        },
+                        index,
+                        None,
+                        rk_integral(grid, k, [pa, pa, pa, pa]) * HARTREE_CM1,
+                        scales.direct_exchange,
+                    );
+                }
+            }
+            for &b in &open[position + 1..] {
+                let other = orbitals[b].subshell;
+                let pb = &orbitals[b].p;
+                let label_b = orbitals[b].label();
+                for k in direct_orders(shell.l.min(other.l)) {
+                    push(
+                        format!("F{k}({label_a},{label_b})"),
+                        IntegralKind::Direct {
+                            k,
+                            a: label_a.clone(),
+                            b: label_b.clone(),
+                        },
+                        index,
+                        None,
+                        rk_integral(grid, k, [pa, pb, pa, pb]) * HARTREE_CM1,
+                        scales.direct_exchange,
+                    );
+                }
+                for k in exchange_orders(shell.l, other.l) {
+                    push(
+                        format!("G{k}({label_a},{label_b})"),
+                        IntegralKind::Exchange {
+                            k,
+                            a: label_a.clone(),
+                            b: label_b.clone(),
+                        },
+                        index,
+                        None,
+                        rk_integral(grid, k, [pa, pb, pb, pa]) * HARTREE_CM1,
+                        scales.direct_exchange,
+                    );
+                }
+            }
+            if shell.l > 0 {
+                push(
+                    format!("zeta({label_a})"),
+                    IntegralKind::SpinOrbit {
+                        orbital: label_a.clone(),
+                    },
+                    index,
+                    None,
+                    spin_orbit_hartree(solution, a) * HARTREE_CM1,
+                    scales.spin_orbit,
+                );
+            }
+        }
+    }
+    for (i, left) in solutions.iter().enumerate() {
+        for (j, right) in solutions.iter().enumerate().skip(i + 1) {
+            let Some((removed, added)) = replacement(&left.configuration, &right.configuration)
+            else {
+                continue;
+            };
+            let length = left.grid.len().min(right.grid.len());
+            let p_left = |s: &Subshell| orbital_p(left, s, length);
+            let p_right = |s: &Subshell| orbital_p(right, s, length);
+            let grid = if left.grid.len() <= right.grid.len() {
+                &left.grid
+            } else {
+                &right.grid
+            };
+            let same_parity = left.configuration.parity() == right.configuration.parity();
+            match (removed.as_slice(), added.as_slice()) {
+                ([a], [c]) if !same_parity => {
+                    if a.l.abs_diff(c.l) != 1 {
+                        continue;
+                    }
+                    let value = grid.integrate_product_power(&p_left(a), &p_right(c), 1);
+                    push(
+                        format!("r({},{})", a.orbital(), c.orbital()),
+                        IntegralKind::Dipole {
+                            a: a.orbital(),
+                            b: c.orbital(),
+                        },
+                        i,
+                        Some(j),
+                        value,
+                        1.0,
+                    );
+                }
+                ([a], [c]) => {
+                    // One electron moves a → c; it interacts through the electrons
+                    // the two configurations share (spectators), in every subshell
+                    // b that is open in either configuration.
+                    let occupancy = |config: &Configuration, s: &Subshell| {
+                        config
+                            .subshells()
+                            .find(|t| t.n == s.n && t.l == s.l)
+                            .map_or(0, |t| t.occupancy)
+                    };
+                    for b in left.configuration.subshells() {
+                        let (q_left, q_right) = (b.occupancy, occupancy(&right.configuration, b));
+                        let shared = q_left.min(q_right);
+                        let open = q_left < b.capacity() || q_right < b.capacity();
+                        if shared == 0 || !open {
+                            continue;
+                        }
+                        let same = |x: &Subshell| x.n == b.n && x.l == b.l;
+                        push_interactions(
+                            &mut push,
+                            grid,
+                            [*a, *b, *c, *b],
+                            &p_left,
+                            &p_right,
+                            i,
+                            j,
+                            scales,
+                        );
+                        // R^k(ab, bc) is another integral unless b is a or c itself.
+                        if !same(a) && !same(c) {
+                            push_interactions(
+                                &mut push,
+                                grid,
+                                [*a, *b, *b, *c],
+                                &p_left,
+                                &p_right,
+                                i,
+                                j,
+                                scales,
+                            );
+                        }
+                    }
+                }
+                ([a, b], [c, d]) if same_parity => {
+                    push_interactions(
+                        &mut push,
+                        grid,
+                        [*a, *b, *c, *d],
+                        &p_left,
+                        &p_right,
+                        i,
+                        j,
+                        scales,
+                    );
+                    if a != b && c != d {
+                        push_interactions(
+                            &mut push,
+                            grid,
+                            [*a, *b, *d, *c],
+                            &p_left,
+                            &p_right,
+                            i,
+                            j,
+                            scales,
+                        );
+                    }
+                }
+                _ => {}
+            }
+        }
+    }
+    Ok(out)
+}
+
+/// R^k(ab, cd) for every k allowed by (l_a k l_c; 000)(l_b k l_d; 000) ≠ 0.
+#[allow(clippy::too_many_arguments)]
+fn push_interactions(
+    push: &mut impl FnMut(String, IntegralKind, usize, Option<usize>, f64, f64),
+    grid: &RadialGrid,
+    [a, b, c, d]: [Subshell; 4],
+    p_left: &impl Fn(&Subshell) -> Vec<f64>,
+    p_right: &impl Fn(&Subshell) -> Vec<f64>,
+    i: usize,
+    j: usize,
+    scales: &ScaleFactors,
+) {
+    let (pa, pb, pc, pd) = (p_left(&a), p_left(&b), p_right(&c), p_right(&d));
+    let k_max = (a.l + c.l).min(b.l + d.l);
+    for k in 0..=k_max {
+        if three_j_zero_squared(a.l, k, c.l) == 0.0 || three_j_zero_squared(b.l, k, d.l) == 0.0 {
+            continue;
+        }
+        let value = rk_integral(grid, k, [&pa, &pb, &pc, &pd]) * HARTREE_CM1;
+        let (la, lb, lc, ld) = (a.orbital(), b.orbital(), c.orbital(), d.orbital());
+        push(
+            format!("R{k}({la}{lb},{lc}{ld})"),
+            IntegralKind::Interaction {
+                k,
+                a: la,
+                b: lb,
+                c: lc,
+                d: ld,
+            },
+            i,
+            Some(j),
+            value,
+            scales.interaction,
+        );
+    }
+}
+
+/// P of subshell `s` in a solution, cut to `length` points (zeros if absent).
+fn orbital_p(solution: &ScfSolution, s: &Subshell, length: usize) -> Vec<f64> {
+    solution
+        .orbital(s.n, s.l)
+        .map(|o| o.p[..length].to_vec())
+        .unwrap_or_else(|| vec![0.0; length])
+}
+
+/// The electrons that leave (from `left`) and arrive (in `right`) when the two
+/// configurations differ by one or two electrons, as subshells with occupancy 1
+/// listed once per electron; `None` when they differ by more (or not at all).
+fn replacement(
+    left: &Configuration,
+    right: &Configuration,
+) -> Option<(Vec<Subshell>, Vec<Subshell>)> {
+    let occupancy = |c: &Configuration| -> BTreeMap<(u32, u32), u32> {
+        c.subshells().map(|s| ((s.n, s.l), s.occupancy)).collect()
+    };
+    let (l, r) = (occupancy(left), occupancy(right));
+    let mut removed = Vec::new();
+    let mut added = Vec::new();
+    let keys: std::collections::BTreeSet<(u32, u32)> = l.keys().chain(r.keys()).copied().collect();
+    for key in keys {
+        let (ql, qr) = (
+            l.get(&key).copied().unwrap_or(0),
+            r.get(&key).copied().unwrap_or(0),
+        );
+        let one = Subshell {
+            n: key.0,
+            l: key.1,
+            occupancy: 1,
+        };
+        for _ in qr..ql {
+            removed.push(one);
+        }
+        for _ in ql..qr {
+            added.push(one);
+        }
+    }
+    match removed.len() {
+        1 | 2 if removed.len() == added.len() => Some((removed, added)),
+        _ => None,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::radial::grid::GridSpec;
+    use crate::radial::scf::screened_hydrogenic;
+
+    fn hydrogenic(z: u32, config: &str) -> ScfSolution {
+        let spec = GridSpec {
+            r_max_bohr: 150.0,
+            ..GridSpec::default()
+        };
+        screened_hydrogenic(z, &config.parse().unwrap(), spec).unwrap()
+    }
+
+    fn names(list: &[RadialIntegral]) -> Vec<&str> {
+        list.iter().map(|i| i.name.as_str()).collect()
+    }
+
+    #[test]
+    fn hydrogen_one_s_two_p_dipole_integral() {
+        // ∫ P_1s r P_2p dr = 2⁷√6/3⁵ = 1.2903 bohr for hydrogen (Bethe & Salpeter
+        // 1957, table 13).
+        let list = radial_integrals(
+            &[hydrogenic(1, "1s"), hydrogenic(1, "2p")],
+            &ScaleFactors::default(),
+        )
+        .unwrap();
+        let dipole = list.iter().find(|i| i.name == "r(1s,2p)").unwrap();
+        let exact = 128.0 * 6f64.sqrt() / 243.0;
+        assert!((dipole.value - exact).abs() < 1e-9, "{}", dipole.value);
+        assert_eq!(dipole.other_configuration, Some(1));
+        assert_eq!(dipole.scale, 1.0);
+    }
+
+    #[test]
+    fn lists_what_a_level_model_of_magnesium_needs() {
+        // Mg 3s2, 3s.3p, 3p2: the names follow the module table; the coupling rules
+        // are common practice (Condon & Shortley 1935, §6.8: R^k needs
+        // (l_a k l_c; 000)(l_b k l_d; 000) ≠ 0).
+        let configs = ["1s2 2s2 2p6 3s2", "1s2 2s2 2p6 3s 3p", "1s2 2s2 2p6 3p2"];
+        let solutions: Vec<ScfSolution> = configs.iter().map(|c| hydrogenic(12, c)).collect();
+        let list = radial_integrals(&solutions, &ScaleFactors::default()).unwrap();
+        let names = names(&list);
+        for expected in [
+            "Eav",
+            "G1(3s,3p)",
+            "zeta(3p)",
+            "F2(3p)",
+            "r(3s,3p)",
+            "r(3s,3p)",
+            "R1(3s3s,3p3p)",
+        ] {
+            assert!(
+                names.contains(&expected),
+                "{expected} missing from {names:?}"
+            );
+        }
+        // No F2 for a single p electron, no zeta for s, no R^k between 3s.3p and
+        // the even configurations.
+        assert!(
+            !names
+                .iter()
+                .any(|n| n.starts_with("F2(3s") || *n == "zeta(3s)")
+        );
+        assert!(list.iter().filter(|i| i.name.starts_with('R')).count() == 1);
+        let first = &list[0];
+        assert_eq!(first.value, 0.0);
+        let g1 = list.iter().find(|i| i.name == "G1(3s,3p)").unwrap();
+        assert!((g1.scaled - 0.85 * g1.value).abs() < 1e-9);
+    }
+
+    #[test]
+    fn single_replacement_interacts_through_the_open_spectator() {
+        // 3d6.4s2 and 3d7.4s (same parity, one electron 4s → 3d): the 3d spectators
+        // give R^k(4s3d,3d3d), k = 2 only ((0 k 2; 000)(2 k 2; 000) ≠ 0); its
+        // exchange form is the same integral. The remaining 4s electron allows no k.
+        let solutions = [
+            hydrogenic(26, "1s2 2s2 2p6 3s2 3p6 3d6 4s2"),
+            hydrogenic(26, "1s2 2s2 2p6 3s2 3p6 3d7 4s"),
+        ];
+        let list = radial_integrals(&solutions, &ScaleFactors::default()).unwrap();
+        let r: Vec<&str> = names(&list)
+            .into_iter()
+            .filter(|n| n.starts_with('R'))
+            .collect();
+        assert_eq!(r, ["R2(4s3d,3d3d)"]);
+    }
+
+    #[test]
+    fn bad_scale_factors_are_rejected() {
+        let scales = ScaleFactors {
+            spin_orbit: 0.0,
+            ..ScaleFactors::default()
+        };
+        assert!(radial_integrals(&[hydrogenic(1, "1s")], &scales).is_err());
+    }
+}

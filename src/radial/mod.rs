@@ -1,0 +1,126 @@
+//! Radial wavefunctions and radial integrals from first principles.
+//!
+//! A spectroscopist facing a new ion has configurations but no parameters: this
+//! module computes the orbitals of each configuration from a self-consistent
+//! central field and the radial integrals a level model is built from (E_av
+//! differences, F^k, G^k, R^k, ζ and dipole integrals), which are then scaled and
+//! fitted. Atomic units (hartree, bohr) inside; the integrals come out in cm⁻¹.
+//!
+//! # Overview
+//!
+//! - [`grid`]: the logarithmic grid r = e^x/Z and integration on it.
+//! - [`numerov`]: bound states of a local potential (Numerov, node counting,
+//!   matching; energies to 10⁻¹⁰ hartree).
+//! - [`hydrogenic`]: closed-form hydrogenic orbitals with an effective charge,
+//!   Slater's screening rules.
+//! - [`slater`]: the Y^k function and the integrals F^k, G^k, R^k, linear in the
+//!   number of grid points.
+//! - [`average`]: the configuration-average energy as a list of Slater integrals.
+//! - [`energy`]: E_av of a set of orbitals, with its kinetic and potential parts.
+//! - [`mod@local_exchange`]: the Hartree–Fock–Slater field (Slater exchange, Latter
+//!   tail), which also starts the Hartree–Fock iterations.
+//! - [`mod@hartree_fock`]: Hartree–Fock for the average energy of a configuration.
+//! - [`scf`]: settings, progress reports ([`ScfObserver`]) and solutions shared by
+//!   the field methods.
+//! - [`integrals`]: the named, scaled integrals of one or more configurations
+//!   ([`radial_integrals`]).
+//!
+//! Nothing here reads files or prints; long calculations report each iteration to
+//! an [`ScfObserver`].
+//!
+//! ```
+//! use termsight::radial::{hartree_fock, radial_integrals, ScaleFactors, ScfOptions, Silent};
+//! let options = ScfOptions::default();
+//! let ground = hartree_fock(12, &"1s2 2s2 2p6 3s2".parse().unwrap(), &options, &mut Silent).unwrap();
+//! let excited = hartree_fock(12, &"1s2 2s2 2p6 3s 3p".parse().unwrap(), &options, &mut Silent).unwrap();
+//! let integrals = radial_integrals(&[ground, excited], &ScaleFactors::default()).unwrap();
+//! let g1 = integrals.iter().find(|i| i.name == "G1(3s,3p)").unwrap();
+//! assert!(g1.value > 30_000.0 && g1.value < 32_000.0); // cm⁻¹
+//! assert_eq!(g1.scaled, 0.85 * g1.value);
+//! ```
+
+pub mod average;
+pub mod energy;
+pub mod grid;
+pub mod hartree_fock;
+pub mod hydrogenic;
+pub mod integrals;
+pub mod local_exchange;
+pub mod numerov;
+mod operator;
+pub mod scf;
+pub mod slater;
+mod three_j;
+
+pub use grid::{GridSpec, RadialGrid};
+pub use hartree_fock::hartree_fock;
+pub use integrals::{IntegralKind, RadialIntegral, ScaleFactors, radial_integrals};
+pub use local_exchange::local_exchange;
+pub use scf::{
+    Method, Orbital, ScfObserver, ScfOptions, ScfProgress, ScfSolution, ScfStage, Silent,
+    screened_hydrogenic,
+};
+
+/// Errors of the radial solver.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[non_exhaustive]
+pub enum RadialError {
+    /// A grid that cannot be built or does not fit the data.
+    #[error("radial grid: {problem}")]
+    InvalidGrid {
+        /// What is wrong.
+        problem: String,
+    },
+    /// An orbital with impossible quantum numbers or charge.
+    #[error("orbital n = {n}, l = {l}: {problem}")]
+    InvalidOrbital {
+        /// Principal quantum number.
+        n: u32,
+        /// Orbital angular momentum.
+        l: u32,
+        /// What is wrong.
+        problem: String,
+    },
+    /// No bound state with the requested node count was found.
+    #[error("no bound state n = {n}, l = {l}: {problem}")]
+    NoBoundState {
+        /// Principal quantum number.
+        n: u32,
+        /// Orbital angular momentum.
+        l: u32,
+        /// What went wrong.
+        problem: String,
+    },
+    /// Settings out of their allowed range.
+    #[error("{problem}")]
+    InvalidSettings {
+        /// What is wrong, with the allowed range.
+        problem: String,
+    },
+    /// A configuration that cannot be computed.
+    #[error("configuration {configuration}: {problem}")]
+    InvalidConfiguration {
+        /// The configuration as printed.
+        configuration: String,
+        /// What is wrong.
+        problem: String,
+    },
+    /// The self-consistent field did not converge.
+    #[error(
+        "the self-consistent field did not converge in {iterations} iterations (residual {residual:.2e})"
+    )]
+    NotConverged {
+        /// Iterations done.
+        iterations: u32,
+        /// The last residual.
+        residual: f64,
+    },
+    /// An orbital came out unbound (ε ≥ 0).
+    #[error("orbital {orbital} is not bound (ε = {energy_hartree:.6} hartree)")]
+    Unbound {
+        /// The orbital label.
+        orbital: String,
+        /// Its energy, hartree.
+        energy_hartree: f64,
+    },
+}

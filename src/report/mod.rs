@@ -1,0 +1,229 @@
+//! Presenting results: terminal tables, CSV and JSON. Writers return text; only
+//! [`crate::cli`] prints it or writes it to files.
+//!
+//! For `termsight assign`, an [`AssignReport`] gathers what every output says: the
+//! input ([`InputSummary`]: source, how positions were given, the medium and air
+//! formula), the matcher's settings, per species where the predictions come from and
+//! which selection rules were applied, and the rows ([`AssignmentRecord`]). Then
+//! [`assign_table`] gives the terminal table, [`assign_csv`] the CSV (the format of
+//! [`crate::assign::ASSIGN_COLUMNS`], which [`crate::assign::read_assignments`] reads
+//! back) and [`assign_json`] the JSON.
+
+mod assign_csv;
+mod assign_json;
+mod assign_table;
+
+use serde::Serialize;
+
+use crate::assign::{AssignmentRecord, Flag, MatchConfig};
+use crate::levels::SpeciesSummary;
+use crate::linelist::{GivenPosition, LineList};
+use crate::units::{AirFormula, Medium};
+
+pub use assign_csv::assign_csv;
+pub use assign_json::assign_json;
+pub use assign_table::{TableOptions, assign_table};
+
+/// What the outputs say about the measured line list.
+#[derive(Debug, Clone, PartialEq, Serialize)]
+pub struct InputSummary {
+    /// The source (path or `<stdin>`).
+    pub source: String,
+    /// Lines read.
+    pub lines: usize,
+    /// Rows skipped as bad (only when skipping was asked for).
+    pub skipped_rows: usize,
+    /// How the positions were given: `air wavelengths (nm)`, `vacuum wavenumbers
+    /// (cm-1)`, … joined with `; ` when mixed.
+    pub positions: String,
+    /// The air formula used, when any wavelength was in air (in JSON: its command-line
+    /// name and its citation).
+    #[serde(serialize_with = "air_formula_json")]
+    pub air_formula: Option<AirFormula>,
+    /// True when the medium of some wavelength was assumed by the convention (air at
+    /// and above 200 nm, vacuum below) because neither the file nor the command line
+    /// gave it.
+    pub medium_assumed: bool,
+}
+
+/// An air formula as `{"name": "birch-downs", "citation": "Birch & Downs (1994, …"}`.
+fn air_formula_json<S: serde::Serializer>(
+    formula: &Option<AirFormula>,
+    serializer: S,
+) -> Result<S::Ok, S::Error> {
+    #[derive(Serialize)]
+    struct Named {
+        name: &'static str,
+        citation: &'static str,
+    }
+    formula
+        .map(|f| Named {
+            name: f.name(),
+            citation: f.citation(),
+        })
+        .serialize(serializer)
+}
+
+impl InputSummary {
+    /// Describe a line list.
+    pub fn from_line_list(list: &LineList) -> InputSummary {
+        let mut kinds: Vec<String> = Vec::new();
+        let mut any_air = false;
+        for line in &list.lines {
+            let kind = match line.given {
+                GivenPosition::Wavelength { unit, medium, .. } => {
+                    any_air |= medium == Medium::Air;
+                    format!("{medium} wavelengths ({unit})")
+                }
+                GivenPosition::Wavenumber { .. } => "vacuum wavenumbers (cm⁻¹)".to_string(),
+            };
+            if !kinds.contains(&kind) {
+                kinds.push(kind);
+            }
+        }
+        InputSummary {
+            source: list.source.clone(),
+            lines: list.lines.len(),
+            skipped_rows: list.skipped_total,
+            positions: kinds.join("; "),
+            air_formula: any_air.then_some(list.air_formula),
+            medium_assumed: list.medium_assumed,
+        }
+    }
+
+    /// One sentence on the positions, the medium and the air formula.
+    pub fn sentence(&self) -> String {
+        let mut text = format!(
+            "{} lines from {}: {}",
+            self.lines,
+            self.source,
+            if self.positions.is_empty() {
+                "no positions"
+            } else {
+                &self.positions
+            }
+        );
+        if let Some(formula) = self.air_formula {
+            text.push_str(&format!(
+                "; air wavelengths converted to vacuum wavenumbers with {}",
+                formula.citation()
+            ));
+        }
+        if self.medium_assumed {
+            text.push_str(
+                "; where neither the file nor --medium gave the medium, air was assumed at \
+                 and above 200 nm and vacuum below (the usual convention)",
+            );
+        }
+        if self.skipped_rows > 0 {
+            let rows = if self.skipped_rows == 1 {
+                "row"
+            } else {
+                "rows"
+            };
+            text.push_str(&format!("; {} bad {rows} skipped", self.skipped_rows));
+        }
+        text
+    }
+}
+
+/// Everything the outputs of `termsight assign` show.
+#[derive(Debug, Clone, Copy)]
+pub struct AssignReport<'a> {
+    /// The measured line list.
+    pub input: &'a InputSummary,
+    /// The matcher's settings.
+    pub config: &'a MatchConfig,
+    /// Per species: origin of the predictions and the rules applied.
+    pub species: &'a [SpeciesSummary],
+    /// The rows: one per candidate, one per unassigned line; by line, then rank.
+    pub records: &'a [AssignmentRecord],
+    /// Names of the pass-through columns of the line list.
+    pub extra_columns: &'a [String],
+}
+
+/// Counts for the summary line.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Serialize)]
+pub struct AssignCounts {
+    /// Observed lines.
+    pub lines: usize,
+    /// Lines with at least one candidate.
+    pub assigned: usize,
+    /// Lines with more than one candidate.
+    pub blends: usize,
+    /// Lines with none.
+    pub unassigned: usize,
+}
+
+impl AssignReport<'_> {
+    /// Count lines, assigned, blends and unassigned from the records.
+    pub fn counts(&self) -> AssignCounts {
+        let mut counts = AssignCounts::default();
+        for record in self.records {
+            match record.rank {
+                None => {
+                    counts.lines += 1;
+                    counts.unassigned += 1;
+                }
+                Some(1) => {
+                    counts.lines += 1;
+                    counts.assigned += 1;
+                    if record.flags.contains(&Flag::Blend) {
+                        counts.blends += 1;
+                    }
+                }
+                Some(_) => {}
+            }
+        }
+        counts
+    }
+
+    /// The description printed above the terminal table and as `#` lines at the top
+    /// of the CSV: input, medium and air formula, predictions and rules per species,
+    /// the matcher's settings, and the counts.
+    pub fn description(&self) -> Vec<String> {
+        let mut lines = vec![format!("Input: {}.", self.input.sentence())];
+        for s in self.species {
+            lines.push(format!(
+                "Predictions, {}: {} ({} levels, {} lines); {}.",
+                s.species,
+                s.origin,
+                s.levels,
+                s.ls_lines + s.parity_and_j_lines,
+                s.rules_sentence()
+            ));
+        }
+        lines.push(format!(
+            "Matching: candidates within {} combined standard uncertainties; ranked by \
+             deviation, a line breaking an LS or one-electron rule counted {} standard \
+             uncertainties further off; chance probability P = 1 − exp(−2ρw) from the \
+             density ρ of predicted lines within ±{} times the tolerance.",
+            self.config.tolerance_sigma(),
+            self.config.rule_penalty_sigma(),
+            self.config.density_window_factor()
+        ));
+        let c = self.counts();
+        lines.push(format!(
+            "Result: {} lines, {} assigned ({} with more than one candidate), {} unassigned.",
+            c.lines, c.assigned, c.blends, c.unassigned
+        ));
+        lines
+    }
+}
+
+/// A number with `significant` significant digits, in plain decimal notation for
+/// magnitudes from 10⁻⁴ up, in exponent notation below.
+fn significant(value: f64, significant: usize) -> String {
+    if value == 0.0 || !value.is_finite() {
+        return format!("{value}");
+    }
+    let magnitude = value.abs().log10().floor() as i32;
+    if magnitude < -4 {
+        return format!("{value:.prec$e}", prec = significant.saturating_sub(1));
+    }
+    let decimals = (significant as i32 - 1 - magnitude).max(0) as usize;
+    format!("{value:.decimals$}")
+}
+
+#[cfg(test)]
+mod tests;

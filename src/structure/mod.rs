@@ -1,0 +1,295 @@
+//! The intermediate-coupling level model: configurations and parameter values in,
+//! levels out (energy, J, parity, LS composition, Landé g, dE/dP).
+//!
+//! # Overview
+//!
+//! - [`LevelStructure::build`] takes configurations (and which pairs of them
+//!   interact) and builds, once, the LS basis of each parity and the coefficient
+//!   matrix C_p of every parameter in every (parity, J) block, so that
+//!   H = Σ_p P_p · C_p. It needs no parameter values.
+//! - [`LevelStructure::parameters`] lists the parameters the configurations need
+//!   ([`ParameterId`]: E_av, F^k, G^k, ζ, R^k with their orbitals), in a fixed
+//!   order; [`required_parameters`] does the same without keeping the structure.
+//! - [`LevelStructure::levels`] sums and diagonalises for given values: each
+//!   [`Level`] has its energy, J, parity, eigenvector, LS composition, Landé g and
+//!   the Hellmann–Feynman derivatives dE/dP_p = ⟨ψ|C_p|ψ⟩. Refits only call this.
+//! - [`model`] reads and writes the TOML model file of an ion.
+//!
+//! How the matrices are made: subshell terms lⁿ are found in the determinants
+//! (kernel of L₊ and S₊, seniority from the pairing operator), coupled subshell
+//! after subshell with Clebsch–Gordan coefficients into LS states with parent
+//! labels (`3d4.(5D).4s 6D`), and the Hamiltonian is projected on them (see
+//! [`hamiltonian`] for the formulas and sources).
+//!
+//! ```
+//! use termsight::notation::Configuration;
+//! use termsight::structure::{LevelStructure, Radial};
+//! // 1s2s: E(¹S) − E(³S) = 2G⁰ (Condon & Shortley 1935, §7⁶).
+//! let config: Configuration = "1s.2s".parse().unwrap();
+//! let structure = LevelStructure::build(&[config], &[]).unwrap();
+//! let values: Vec<f64> = structure
+//!     .parameters()
+//!     .iter()
+//!     .map(|p| if p.radial == Radial::Average { 160_000.0 } else { 3_000.0 })
+//!     .collect();
+//! let levels = structure.levels(&values).unwrap();
+//! assert!((levels[1].energy_cm1 - levels[0].energy_cm1 - 6_000.0).abs() < 1e-9);
+//! ```
+
+mod basis;
+pub mod hamiltonian;
+mod levels;
+pub mod model;
+mod orbital;
+mod parameter;
+mod shell;
+
+use std::collections::HashSet;
+
+pub use basis::{BasisTerm, TermLabel};
+pub use hamiltonian::{JBlock, ParityBlock};
+pub use levels::{Component, Level, lande_g_ls};
+pub use orbital::{Determinant, MAX_SPIN_ORBITALS, Orbital, SpinOrbital, SpinOrbitalLayout};
+pub use parameter::{ParameterId, Radial, Scope, scope_name};
+pub use shell::{MAX_SHELL_L, ShellTerm, ShellTerms};
+
+use crate::notation::{Configuration, Parity};
+
+/// A level model that cannot be built or evaluated.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[non_exhaustive]
+pub enum StructureError {
+    /// No configuration was given.
+    #[error("the model has no configurations")]
+    NoConfigurations,
+    /// Configurations with different numbers of electrons.
+    #[error(
+        "configuration {configuration} has {found} electrons but {first} has {expected}: \
+         write the same core in every configuration, or leave it out of all"
+    )]
+    ElectronCount {
+        /// The configuration that differs.
+        configuration: String,
+        /// Its electron count.
+        found: u32,
+        /// The first configuration.
+        first: String,
+        /// The first configuration's electron count.
+        expected: u32,
+    },
+    /// The same configuration twice.
+    #[error("configuration {configuration} is listed twice")]
+    Duplicate {
+        /// The configuration.
+        configuration: String,
+    },
+    /// An orbital with l beyond what the determinant code handles.
+    #[error("orbital {orbital} has l > {MAX_SHELL_L}, beyond what the level model handles")]
+    OrbitalTooHigh {
+        /// The orbital.
+        orbital: Orbital,
+    },
+    /// More open spin-orbitals in one parity than a determinant holds.
+    #[error(
+        "the {parity} configurations have {spin_orbitals} open spin-orbitals; at most \
+         {MAX_SPIN_ORBITALS} fit in one parity block"
+    )]
+    TooManyOrbitals {
+        /// The parity.
+        parity: Parity,
+        /// Number of spin-orbitals.
+        spin_orbitals: usize,
+    },
+    /// An interaction between configurations of opposite parity.
+    #[error("configurations {first} and {second} have opposite parity and cannot interact")]
+    OppositeParity {
+        /// First configuration.
+        first: String,
+        /// Second configuration.
+        second: String,
+    },
+    /// An interaction that names a configuration index not in the model.
+    #[error("an interaction names configuration number {index}, but the model has {count}")]
+    NoSuchConfiguration {
+        /// The index.
+        index: usize,
+        /// Number of configurations.
+        count: usize,
+    },
+    /// Wrong number of parameter values.
+    #[error("{found} parameter values given, the model has {expected} parameters")]
+    ValueCount {
+        /// Parameters of the model.
+        expected: usize,
+        /// Values given.
+        found: usize,
+    },
+    /// A value that is NaN or infinite.
+    #[error("parameter {parameter} is not a finite number")]
+    NotFinite {
+        /// Full name of the parameter.
+        parameter: String,
+    },
+}
+
+/// What [`LevelStructure::build_with_progress`] reports as it goes.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct BuildProgress {
+    /// Parity blocks finished.
+    pub blocks_done: usize,
+    /// Parity blocks in all.
+    pub blocks_total: usize,
+}
+
+/// The built level model: LS bases and coefficient matrices of every parity and J
+/// block, ready to be evaluated for any parameter values.
+#[derive(Debug, Clone)]
+pub struct LevelStructure {
+    configurations: Vec<Configuration>,
+    parameters: Vec<ParameterId>,
+    blocks: Vec<ParityBlock>,
+}
+
+impl LevelStructure {
+    /// Build the structure of `configurations` (intermediate terms in their labels
+    /// are ignored), with configuration interaction between the pairs of indices in
+    /// `interactions` (same parity only).
+    pub fn build(
+        configurations: &[Configuration],
+        interactions: &[(usize, usize)],
+    ) -> Result<LevelStructure, StructureError> {
+        Self::build_with_progress(configurations, interactions, |_| {})
+    }
+
+    /// [`Self::build`], calling `progress` after each parity block.
+    pub fn build_with_progress(
+        configurations: &[Configuration],
+        interactions: &[(usize, usize)],
+        mut progress: impl FnMut(BuildProgress),
+    ) -> Result<LevelStructure, StructureError> {
+        let configurations: Vec<Configuration> = configurations
+            .iter()
+            .map(Configuration::without_intermediates)
+            .collect();
+        let first = configurations
+            .first()
+            .ok_or(StructureError::NoConfigurations)?;
+        for (i, c) in configurations.iter().enumerate() {
+            if c.electron_count() != first.electron_count() {
+                return Err(StructureError::ElectronCount {
+                    configuration: c.to_string(),
+                    found: c.electron_count(),
+                    first: first.to_string(),
+                    expected: first.electron_count(),
+                });
+            }
+            let mut sorted: Vec<_> = c.subshells().collect();
+            sorted.sort();
+            if configurations[..i].iter().any(|d| {
+                let mut other: Vec<_> = d.subshells().collect();
+                other.sort();
+                other == sorted
+            }) {
+                return Err(StructureError::Duplicate {
+                    configuration: c.to_string(),
+                });
+            }
+        }
+        let mut pairs = HashSet::new();
+        for &(a, b) in interactions {
+            for index in [a, b] {
+                if index >= configurations.len() {
+                    return Err(StructureError::NoSuchConfiguration {
+                        index,
+                        count: configurations.len(),
+                    });
+                }
+            }
+            if configurations[a].parity() != configurations[b].parity() {
+                return Err(StructureError::OppositeParity {
+                    first: configurations[a].to_string(),
+                    second: configurations[b].to_string(),
+                });
+            }
+            pairs.insert((a.min(b), a.max(b)));
+        }
+        let parities: Vec<Parity> = [Parity::Even, Parity::Odd]
+            .into_iter()
+            .filter(|p| configurations.iter().any(|c| c.parity() == *p))
+            .collect();
+        let mut built = Vec::new();
+        for (done, parity) in parities.iter().enumerate() {
+            let members: Vec<usize> = (0..configurations.len())
+                .filter(|&i| configurations[i].parity() == *parity)
+                .collect();
+            built.push(hamiltonian::build_block(
+                *parity,
+                &configurations,
+                &members,
+                &pairs,
+            )?);
+            progress(BuildProgress {
+                blocks_done: done + 1,
+                blocks_total: parities.len(),
+            });
+        }
+        // Index the parameters that act somewhere, in (scope, kind) order.
+        let mut ids: Vec<ParameterId> = built
+            .iter()
+            .flat_map(|b| b.j_coefficients.iter().flat_map(|m| m.keys().copied()))
+            .collect();
+        ids.sort();
+        ids.dedup();
+        let blocks = built
+            .into_iter()
+            .map(|mut b| {
+                for (j_block, matrices) in b.block.j_blocks.iter_mut().zip(b.j_coefficients) {
+                    j_block.coefficients = matrices
+                        .into_iter()
+                        .filter_map(|(id, m)| ids.binary_search(&id).ok().map(|p| (p, m)))
+                        .collect();
+                }
+                b.block
+            })
+            .collect();
+        Ok(LevelStructure {
+            configurations,
+            parameters: ids,
+            blocks,
+        })
+    }
+
+    /// The configurations, as given (without intermediate terms).
+    pub fn configurations(&self) -> &[Configuration] {
+        &self.configurations
+    }
+
+    /// The parameters, in the order [`Self::levels`] takes their values.
+    pub fn parameters(&self) -> &[ParameterId] {
+        &self.parameters
+    }
+
+    /// Index of a parameter in [`Self::parameters`].
+    pub fn parameter_index(&self, id: &ParameterId) -> Option<usize> {
+        self.parameters.binary_search(id).ok()
+    }
+
+    /// The parity blocks (even first).
+    pub fn blocks(&self) -> &[ParityBlock] {
+        &self.blocks
+    }
+
+    /// The label of an LS basis state of block `block`.
+    pub fn state_label(&self, block: usize, state: usize) -> &TermLabel {
+        &self.blocks[block].basis[state].label
+    }
+}
+
+/// The parameters that `configurations`, with configuration interaction between the
+/// pairs in `interactions`, need: for a radial calculation to fill in.
+pub fn required_parameters(
+    configurations: &[Configuration],
+    interactions: &[(usize, usize)],
+) -> Result<Vec<ParameterId>, StructureError> {
+    Ok(LevelStructure::build(configurations, interactions)?.parameters)
+}

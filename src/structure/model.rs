@@ -1,0 +1,904 @@
+//! The model file of an ion: a TOML document with the species, the
+//! configurations with their parameter values (cm⁻¹), and the configuration
+//! interactions.
+//!
+//! ```toml
+//! # Energies in cm⁻¹.
+//! species = "Mg I"
+//!
+//! [[configuration]]
+//! label = "3s2"
+//! Eav = 0.0
+//!
+//! [[configuration]]
+//! label = "3s.3p"
+//! Eav = 30000.0
+//! "G1(3s,3p)" = { value = 12000.0, uncertainty = 150.0 }
+//! "zeta(3p)" = { value = 40.0, vary = "fixed" }
+//!
+//! [[configuration]]
+//! label = "3p2"
+//! Eav = 60000.0
+//! "F2(3p)" = 30000.0
+//! "zeta(3p)" = { tie = "zeta(3p)@3s.3p", ratio = 1.1 }
+//!
+//! [[interaction]]
+//! between = ["3s2", "3p2"]
+//! "R1(3s3s,3p3p)" = 15000.0
+//! ```
+//!
+//! - `species` (required): the spectrum, `Mg I`.
+//! - `[[configuration]]`, one per configuration: `label` (a configuration as
+//!   `notation` reads it; the same closed core in every one, or none), then one
+//!   entry per parameter of that configuration, named as in
+//!   [`super::Radial`]: `Eav`, `F2(3p)` (or `F2(3p,3p)`), `F2(3p,4p)`, `G1(3s,3p)`,
+//!   `zeta(3p)`. Every parameter the configuration needs must be there, and no other.
+//! - `[[interaction]]` (optional), one per pair of configurations of the same
+//!   parity that mix: `between = [label, label]` and their R^k integrals,
+//!   `R1(3s3s,3p3p)`. Pairs without an interaction table do not mix.
+//! - A parameter is a number, or a table with `value`, `vary` (`"free"`, the
+//!   default, or `"fixed"`), `uncertainty` (≥ 0, optional), or `tie` (the name of
+//!   another parameter) with `ratio` (default 1): a tied parameter equals ratio ×
+//!   the other and needs no `value` (if one is given it must agree).
+//!   A tie names the parameter as `name@scope` (`zeta(3p)@3s.3p`,
+//!   `R1(3s3s,3p3p)@3s2~3p2`), or by its short name alone when that is in the same
+//!   table or unique in the model.
+//!
+//! Every error names the file, line and key.
+
+use std::collections::{BTreeMap, HashMap};
+use std::fmt::Write as _;
+use std::io::BufRead;
+
+use toml::Spanned;
+use toml::de::{DeTable, DeValue};
+
+use super::parameter::{ParameterId, Radial, Scope, scope_name};
+use super::{LevelStructure, StructureError};
+use crate::location::Location;
+use crate::notation::{Configuration, Species};
+
+/// How a parameter moves in a fit.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Vary {
+    /// Adjusted by the fit.
+    Free,
+    /// Held at its value.
+    Fixed,
+    /// Always `ratio` × the value of parameter `to`.
+    Tied {
+        /// The parameter it follows.
+        to: ParameterId,
+        /// The ratio.
+        ratio: f64,
+    },
+}
+
+/// One parameter of a model, with its value and how it varies.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ModelParameter {
+    /// Which parameter.
+    pub id: ParameterId,
+    /// Its value in cm⁻¹ (for a tied parameter: ratio × the other's value).
+    pub value: f64,
+    /// Free, fixed or tied.
+    pub vary: Vary,
+    /// Its standard uncertainty in cm⁻¹, when known (a fit writes it).
+    pub uncertainty: Option<f64>,
+}
+
+/// The level model of one ion.
+#[derive(Debug, Clone, PartialEq)]
+pub struct LevelModel {
+    /// The spectrum.
+    pub species: Species,
+    /// The configurations, in file order.
+    pub configurations: Vec<Configuration>,
+    /// Pairs of configurations (indices) that mix.
+    pub interactions: Vec<(usize, usize)>,
+    /// Every parameter, in the order of [`LevelStructure::parameters`].
+    pub parameters: Vec<ModelParameter>,
+}
+
+impl LevelModel {
+    /// Build the model's level structure.
+    pub fn structure(&self) -> Result<LevelStructure, StructureError> {
+        LevelStructure::build(&self.configurations, &self.interactions)
+    }
+
+    /// Parameter values in the order of `structure`'s parameters (0 for any the
+    /// model lacks).
+    pub fn values_for(&self, structure: &LevelStructure) -> Vec<f64> {
+        let by_id: HashMap<ParameterId, f64> =
+            self.parameters.iter().map(|p| (p.id, p.value)).collect();
+        structure
+            .parameters()
+            .iter()
+            .map(|id| by_id.get(id).copied().unwrap_or(0.0))
+            .collect()
+    }
+
+    /// The full name of a parameter (`zeta(3p)@3s.3p`).
+    pub fn full_name(&self, id: &ParameterId) -> String {
+        id.full_name(&self.configurations)
+    }
+}
+
+/// A model file that cannot be used. Displays as `file:line: key 'name': problem`.
+#[derive(Debug, thiserror::Error)]
+#[non_exhaustive]
+pub enum ModelError {
+    /// The file could not be read.
+    #[error("{source_name}: {error}")]
+    Read {
+        /// The file.
+        source_name: String,
+        /// What went wrong.
+        error: std::io::Error,
+    },
+    /// Anything wrong with the content, at a place in the file.
+    #[error("{location}: {problem}")]
+    Invalid {
+        /// File, line and key.
+        location: Location,
+        /// What is wrong and what was expected.
+        problem: String,
+    },
+}
+
+/// Position → line converter for one document.
+struct Lines<'a> {
+    source: &'a str,
+    starts: Vec<usize>,
+}
+
+impl<'a> Lines<'a> {
+    fn new(source: &'a str, text: &str) -> Lines<'a> {
+        let mut starts = vec![0];
+        starts.extend(text.match_indices('\n').map(|(i, _)| i + 1));
+        Lines { source, starts }
+    }
+
+    /// 1-based line of a byte offset.
+    fn line(&self, offset: usize) -> usize {
+        self.starts.partition_point(|&s| s <= offset)
+    }
+
+    fn error(&self, offset: usize, key: &str, problem: impl Into<String>) -> ModelError {
+        let mut location = Location::line(self.source, self.line(offset));
+        if !key.is_empty() {
+            location = location.key(key);
+        }
+        ModelError::Invalid {
+            location,
+            problem: problem.into(),
+        }
+    }
+}
+
+/// The model as read, with the structure built from it (needed to know which
+/// parameters the configurations take).
+#[derive(Debug, Clone)]
+pub struct LoadedModel {
+    /// The model.
+    pub model: LevelModel,
+    /// Its level structure.
+    pub structure: LevelStructure,
+}
+
+/// A parameter entry as written.
+struct Entry {
+    key: String,
+    key_offset: usize,
+    scope: Scope,
+    value: Option<f64>,
+    vary: Option<String>,
+    tie: Option<(String, usize)>,
+    ratio: f64,
+    uncertainty: Option<f64>,
+}
+
+fn number(value: &DeValue<'_>) -> Option<f64> {
+    let parsed = match value {
+        DeValue::Integer(i) => i64::from_str_radix(i.as_str(), i.radix())
+            .ok()
+            .map(|v| v as f64),
+        DeValue::Float(f) => f.as_str().replace('_', "").parse::<f64>().ok(),
+        _ => None,
+    };
+    parsed.filter(|v| v.is_finite())
+}
+
+/// Read a model from `reader`; `source` names it in errors.
+pub fn read_model(mut reader: impl BufRead, source: &str) -> Result<LoadedModel, ModelError> {
+    let mut text = String::new();
+    reader
+        .read_to_string(&mut text)
+        .map_err(|error| ModelError::Read {
+            source_name: source.to_string(),
+            error,
+        })?;
+    parse_model(&text, source)
+}
+
+/// Read a model from its text; `source` names it in errors.
+pub fn parse_model(text: &str, source: &str) -> Result<LoadedModel, ModelError> {
+    let lines = Lines::new(source, text);
+    let document = DeTable::parse(text).map_err(|e| {
+        let offset = e.span().map_or(0, |s| s.start);
+        lines.error(offset, "", format!("not valid TOML: {}", e.message()))
+    })?;
+    let document = document.get_ref();
+    let mut species = None;
+    let mut config_tables = Vec::new();
+    let mut interaction_tables = Vec::new();
+    for (key, value) in document.iter() {
+        let at = key.span().start;
+        match key.get_ref().as_ref() {
+            "species" => {
+                let text = value.get_ref().as_str().ok_or_else(|| {
+                    lines.error(at, "species", "expected a string such as \"Mg I\"")
+                })?;
+                species = Some(
+                    text.parse::<Species>()
+                        .map_err(|e| lines.error(at, "species", e.to_string()))?,
+                );
+            }
+            "configuration" | "interaction" => {
+                let name = key.get_ref().as_ref();
+                let DeValue::Array(array) = value.get_ref() else {
+                    return Err(lines.error(at, name, format!("expected [[{name}]] tables")));
+                };
+                for item in array.iter() {
+                    let DeValue::Table(table) = item.get_ref() else {
+                        return Err(lines.error(
+                            item.span().start,
+                            name,
+                            format!("expected [[{name}]] tables"),
+                        ));
+                    };
+                    if name == "configuration" {
+                        config_tables.push((item.span().start, table));
+                    } else {
+                        interaction_tables.push((item.span().start, table));
+                    }
+                }
+            }
+            other => {
+                return Err(lines.error(
+                    at,
+                    other,
+                    "unknown key; a model has species, [[configuration]] and [[interaction]]",
+                ));
+            }
+        }
+    }
+    let species = species.ok_or_else(|| {
+        lines.error(
+            0,
+            "species",
+            "missing: name the spectrum, e.g. species = \"Mg I\"",
+        )
+    })?;
+    if config_tables.is_empty() {
+        return Err(lines.error(
+            0,
+            "configuration",
+            "the model has no [[configuration]] tables",
+        ));
+    }
+
+    // Configurations and their parameter entries.
+    let mut configurations = Vec::new();
+    let mut label_offsets = Vec::new();
+    let mut entries: Vec<Entry> = Vec::new();
+    for (index, (start, table)) in config_tables.iter().enumerate() {
+        let (label, offset) = string_key(&lines, table, "label", *start)?;
+        let configuration: Configuration =
+            label.parse().map_err(|e: crate::notation::NotationError| {
+                lines.error(offset, "label", e.to_string())
+            })?;
+        let configuration = configuration.without_intermediates();
+        if configuration.electron_count() > species.electron_count() {
+            return Err(lines.error(
+                offset,
+                "label",
+                format!(
+                    "{configuration} has {} electrons, more than the {} of {species}",
+                    configuration.electron_count(),
+                    species.electron_count()
+                ),
+            ));
+        }
+        configurations.push(configuration);
+        label_offsets.push(offset);
+        read_entries(
+            &lines,
+            table,
+            Scope::Configuration(index),
+            &["label"],
+            &mut entries,
+        )?;
+    }
+    // Interactions.
+    let mut interactions = Vec::new();
+    let mut between_offsets = Vec::new();
+    for (start, table) in &interaction_tables {
+        let Some((key, value)) = table.iter().find(|(k, _)| k.get_ref() == "between") else {
+            return Err(lines.error(
+                *start,
+                "between",
+                "missing: name the two configurations, between = [\"3s2\", \"3p2\"]",
+            ));
+        };
+        let at = key.span().start;
+        let names: Vec<&str> = match value.get_ref() {
+            DeValue::Array(a) => a.iter().filter_map(|v| v.get_ref().as_str()).collect(),
+            _ => Vec::new(),
+        };
+        if names.len() != 2 {
+            return Err(lines.error(
+                at,
+                "between",
+                "expected two configuration labels, [\"3s2\", \"3p2\"]",
+            ));
+        }
+        let mut pair = [0usize; 2];
+        for (slot, name) in pair.iter_mut().zip(&names) {
+            let wanted: Configuration =
+                name.parse().map_err(|e: crate::notation::NotationError| {
+                    lines.error(at, "between", e.to_string())
+                })?;
+            let mut wanted_shells: Vec<_> = wanted.subshells().copied().collect();
+            wanted_shells.sort();
+            *slot = configurations
+                .iter()
+                .position(|c| {
+                    let mut shells: Vec<_> = c.subshells().copied().collect();
+                    shells.sort();
+                    shells == wanted_shells
+                })
+                .ok_or_else(|| {
+                    lines.error(
+                        at,
+                        "between",
+                        format!("{name} is not one of the model's configurations"),
+                    )
+                })?;
+        }
+        if pair[0] == pair[1] {
+            return Err(lines.error(at, "between", "a configuration cannot interact with itself"));
+        }
+        let (a, b) = (pair[0].min(pair[1]), pair[0].max(pair[1]));
+        if interactions.contains(&(a, b)) {
+            return Err(lines.error(
+                at,
+                "between",
+                "this pair already has an [[interaction]] table",
+            ));
+        }
+        interactions.push((a, b));
+        between_offsets.push(at);
+        read_entries(
+            &lines,
+            table,
+            Scope::Interaction(a, b),
+            &["between"],
+            &mut entries,
+        )?;
+    }
+
+    // Build the structure to learn which parameters are needed.
+    let structure =
+        LevelStructure::build(&configurations, &interactions).map_err(|e| match &e {
+            StructureError::ElectronCount { configuration, .. }
+            | StructureError::Duplicate { configuration } => {
+                let i = configurations
+                    .iter()
+                    .rposition(|c| c.to_string() == *configuration)
+                    .unwrap_or(0);
+                lines.error(label_offsets[i], "label", e.to_string())
+            }
+            StructureError::OppositeParity { .. } => lines.error(
+                between_offsets.first().copied().unwrap_or(0),
+                "between",
+                e.to_string(),
+            ),
+            _ => lines.error(label_offsets[0], "label", e.to_string()),
+        })?;
+    let needed = structure.parameters();
+    let names_in = |scope: Scope| -> String {
+        needed
+            .iter()
+            .filter(|p| p.scope == scope)
+            .map(|p| p.radial.to_string())
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
+    let scope_label = |scope: Scope| match scope {
+        Scope::Configuration(_) => format!("configuration {}", scope_name(scope, &configurations)),
+        Scope::Interaction(..) => format!("interaction {}", scope_name(scope, &configurations)),
+    };
+
+    // Match entries to parameters.
+    let mut given: BTreeMap<ParameterId, usize> = BTreeMap::new();
+    for (e, entry) in entries.iter().enumerate() {
+        let radial: Radial = entry
+            .key
+            .parse()
+            .map_err(|m: String| lines.error(entry.key_offset, &entry.key, m))?;
+        let mut id = ParameterId {
+            scope: entry.scope,
+            radial,
+        };
+        if needed.binary_search(&id).is_err()
+            && let Some(same) = needed
+                .iter()
+                .find(|p| p.scope == entry.scope && p.radial.same_integral(&radial))
+        {
+            // Another spelling of the same R^k integral.
+            id = *same;
+        }
+        if needed.binary_search(&id).is_err() {
+            let list = names_in(entry.scope);
+            let hint = if list.is_empty() {
+                "it takes no parameters (these configurations do not interact through the open subshells)".to_string()
+            } else {
+                format!("it takes {list}")
+            };
+            return Err(lines.error(
+                entry.key_offset,
+                &entry.key,
+                format!("not a parameter of {}; {hint}", scope_label(entry.scope)),
+            ));
+        }
+        if given.insert(id, e).is_some() {
+            return Err(lines.error(
+                entry.key_offset,
+                &entry.key,
+                "this parameter is given twice",
+            ));
+        }
+    }
+    for id in needed {
+        if !given.contains_key(id) {
+            let offset = match id.scope {
+                Scope::Configuration(c) => label_offsets[c],
+                Scope::Interaction(a, b) => {
+                    let i = interactions.iter().position(|&p| p == (a, b)).unwrap_or(0);
+                    between_offsets[i]
+                }
+            };
+            return Err(lines.error(
+                offset,
+                &id.radial.to_string(),
+                format!(
+                    "missing: {} needs a value for every parameter: {}",
+                    scope_label(id.scope),
+                    names_in(id.scope)
+                ),
+            ));
+        }
+    }
+
+    // Values, ties.
+    let mut parameters = Vec::new();
+    for id in needed {
+        let entry = &entries[given[id]];
+        let vary = match (&entry.tie, entry.vary.as_deref()) {
+            (Some((name, at)), None) => {
+                let target = resolve_tie(name, entry.scope, &configurations, needed)
+                    .map_err(|m| lines.error(*at, &entry.key, m))?;
+                if target == *id {
+                    return Err(lines.error(
+                        *at,
+                        &entry.key,
+                        "a parameter cannot be tied to itself",
+                    ));
+                }
+                Vary::Tied {
+                    to: target,
+                    ratio: entry.ratio,
+                }
+            }
+            (Some((_, at)), Some(_)) => {
+                return Err(lines.error(*at, &entry.key, "give either tie or vary, not both"));
+            }
+            (None, None) | (None, Some("free")) => Vary::Free,
+            (None, Some("fixed")) => Vary::Fixed,
+            (None, Some(other)) => {
+                return Err(lines.error(
+                    entry.key_offset,
+                    &entry.key,
+                    format!("vary = \"{other}\" is not understood; use \"free\" or \"fixed\" (or tie = \"…\")"),
+                ));
+            }
+        };
+        if !matches!(vary, Vary::Tied { .. }) && entry.value.is_none() {
+            return Err(lines.error(entry.key_offset, &entry.key, "the table has no value"));
+        }
+        parameters.push(ModelParameter {
+            id: *id,
+            value: entry.value.unwrap_or(f64::NAN),
+            vary,
+            uncertainty: entry.uncertainty,
+        });
+    }
+    let snapshot = parameters.clone();
+    for parameter in parameters.iter_mut() {
+        if let Vary::Tied { to, ratio } = parameter.vary {
+            let entry = &entries[given[&parameter.id]];
+            let at = entry.tie.as_ref().map_or(entry.key_offset, |t| t.1);
+            let target = snapshot.iter().find(|q| q.id == to).ok_or_else(|| {
+                lines.error(at, &entry.key, "the tie names no parameter of the model")
+            })?;
+            if matches!(target.vary, Vary::Tied { .. }) {
+                return Err(lines.error(
+                    at,
+                    &entry.key,
+                    format!(
+                        "{} is itself tied; tie to a free or fixed parameter",
+                        to.full_name(&configurations)
+                    ),
+                ));
+            }
+            let tied_value = ratio * target.value;
+            if let Some(given_value) = entry.value
+                && (given_value - tied_value).abs() > 1e-9 * tied_value.abs().max(1.0)
+            {
+                return Err(lines.error(
+                    entry.key_offset,
+                    &entry.key,
+                    format!(
+                        "value {given_value} disagrees with the tie: {ratio} × {} = {tied_value}",
+                        target.value
+                    ),
+                ));
+            }
+            parameter.value = tied_value;
+        }
+    }
+    Ok(LoadedModel {
+        model: LevelModel {
+            species,
+            configurations,
+            interactions,
+            parameters,
+        },
+        structure,
+    })
+}
+
+/// A required string key of a table: its value and the offset of the key.
+fn string_key<'a>(
+    lines: &Lines<'_>,
+    table: &'a DeTable<'_>,
+    name: &str,
+    table_start: usize,
+) -> Result<(&'a str, usize), ModelError> {
+    let (key, value) = table
+        .iter()
+        .find(|(k, _)| k.get_ref() == name)
+        .ok_or_else(|| lines.error(table_start, name, "missing"))?;
+    let at = key.span().start;
+    let text = value
+        .get_ref()
+        .as_str()
+        .ok_or_else(|| lines.error(at, name, "expected a string"))?;
+    Ok((text, at))
+}
+
+/// The parameter entries of a table (every key but `skip`).
+fn read_entries(
+    lines: &Lines<'_>,
+    table: &DeTable<'_>,
+    scope: Scope,
+    skip: &[&str],
+    out: &mut Vec<Entry>,
+) -> Result<(), ModelError> {
+    for (key, value) in table.iter() {
+        let name = key.get_ref().as_ref();
+        if skip.contains(&name) {
+            continue;
+        }
+        let at = key.span().start;
+        let mut entry = Entry {
+            key: name.to_string(),
+            key_offset: at,
+            scope,
+            value: None,
+            vary: None,
+            tie: None,
+            ratio: 1.0,
+            uncertainty: None,
+        };
+        match value.get_ref() {
+            DeValue::Table(inner) => {
+                for (k, v) in inner.iter() {
+                    let field = format!("{name}.{}", k.get_ref());
+                    let here = k.span().start;
+                    let num = |v: &Spanned<DeValue<'_>>| {
+                        number(v.get_ref()).ok_or_else(|| lines.error(here, &field, "not a number"))
+                    };
+                    match k.get_ref().as_ref() {
+                        "value" => entry.value = Some(num(v)?),
+                        "ratio" => entry.ratio = num(v)?,
+                        "uncertainty" => {
+                            let u = num(v)?;
+                            if u < 0.0 {
+                                return Err(lines.error(
+                                    here,
+                                    &field,
+                                    "an uncertainty cannot be negative",
+                                ));
+                            }
+                            entry.uncertainty = Some(u);
+                        }
+                        "vary" => {
+                            entry.vary = Some(
+                                v.get_ref()
+                                    .as_str()
+                                    .ok_or_else(|| {
+                                        lines.error(here, &field, "expected \"free\" or \"fixed\"")
+                                    })?
+                                    .to_string(),
+                            )
+                        }
+                        "tie" => {
+                            entry.tie = Some((
+                                v.get_ref()
+                                    .as_str()
+                                    .ok_or_else(|| {
+                                        lines.error(
+                                            here,
+                                            &field,
+                                            "expected a parameter name such as \"zeta(3p)@3s.3p\"",
+                                        )
+                                    })?
+                                    .to_string(),
+                                here,
+                            ))
+                        }
+                        _ => {
+                            return Err(lines.error(
+                                here,
+                                &field,
+                                "unknown key; a parameter table has value, vary, tie, ratio and uncertainty",
+                            ));
+                        }
+                    }
+                }
+            }
+            other => {
+                entry.value = Some(number(other).ok_or_else(|| {
+                    lines.error(
+                        at,
+                        name,
+                        "not a number; give a value in cm⁻¹ or a table { value = … }",
+                    )
+                })?);
+            }
+        }
+        out.push(entry);
+    }
+    Ok(())
+}
+
+/// The parameter a tie names: `name@scope`, or a short name found first in
+/// `scope`, else unique in the model.
+fn resolve_tie(
+    text: &str,
+    scope: Scope,
+    configurations: &[Configuration],
+    needed: &[ParameterId],
+) -> Result<ParameterId, String> {
+    let (name, scope_text) = match text.split_once('@') {
+        Some((n, s)) => (n, Some(s.trim())),
+        None => (text, None),
+    };
+    let radial: Radial = name.parse()?;
+    let candidates: Vec<&ParameterId> = needed
+        .iter()
+        .filter(|p| p.radial.same_integral(&radial))
+        .collect();
+    let found = match scope_text {
+        Some(s) => candidates
+            .iter()
+            .find(|p| scope_name(p.scope, configurations) == s)
+            .copied(),
+        None => {
+            candidates
+                .iter()
+                .find(|p| p.scope == scope)
+                .copied()
+                .or(if candidates.len() == 1 {
+                    Some(candidates[0])
+                } else {
+                    None
+                })
+        }
+    };
+    found.copied().ok_or_else(|| {
+        let names: Vec<String> = candidates
+            .iter()
+            .map(|p| p.full_name(configurations))
+            .collect();
+        if names.is_empty() {
+            format!("the tie '{text}' names no parameter of the model")
+        } else {
+            format!(
+                "the tie '{text}' is not one parameter; write one of: {}",
+                names.join(", ")
+            )
+        }
+    })
+}
+
+/// Write a model in the file format read by [`read_model`].
+pub fn write_model(model: &LevelModel) -> String {
+    let mut out = String::new();
+    let _ = writeln!(out, "species = \"{}\"", model.species);
+    let write_parameter = |out: &mut String, p: &ModelParameter| {
+        let name = p.id.radial.to_string();
+        let key = if name == "Eav" {
+            name
+        } else {
+            format!("\"{name}\"")
+        };
+        let mut fields = Vec::new();
+        match p.vary {
+            Vary::Tied { to, ratio } => {
+                fields.push(format!("tie = \"{}\"", to.full_name(&model.configurations)));
+                fields.push(format!("ratio = {}", float(ratio)));
+                fields.push(format!("value = {}", float(p.value)));
+            }
+            Vary::Fixed => {
+                fields.push(format!("value = {}", float(p.value)));
+                fields.push("vary = \"fixed\"".to_string());
+            }
+            Vary::Free => fields.push(format!("value = {}", float(p.value))),
+        }
+        if let Some(u) = p.uncertainty {
+            fields.push(format!("uncertainty = {}", float(u)));
+        }
+        if fields.len() == 1 && matches!(p.vary, Vary::Free) {
+            let _ = writeln!(out, "{key} = {}", float(p.value));
+        } else {
+            let _ = writeln!(out, "{key} = {{ {} }}", fields.join(", "));
+        }
+    };
+    for (c, configuration) in model.configurations.iter().enumerate() {
+        let _ = writeln!(out, "\n[[configuration]]\nlabel = \"{configuration}\"");
+        for p in model
+            .parameters
+            .iter()
+            .filter(|p| p.id.scope == Scope::Configuration(c))
+        {
+            write_parameter(&mut out, p);
+        }
+    }
+    for &(a, b) in &model.interactions {
+        let _ = writeln!(
+            out,
+            "\n[[interaction]]\nbetween = [\"{}\", \"{}\"]",
+            model.configurations[a], model.configurations[b]
+        );
+        for p in model
+            .parameters
+            .iter()
+            .filter(|p| p.id.scope == Scope::Interaction(a, b))
+        {
+            write_parameter(&mut out, p);
+        }
+    }
+    out
+}
+
+/// A float as TOML: always with a decimal point or exponent.
+fn float(value: f64) -> String {
+    let text = format!("{value:?}");
+    if text.contains(['.', 'e', 'E']) || !value.is_finite() {
+        text
+    } else {
+        format!("{text}.0")
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const MG: &str = r#"# test model
+species = "Mg I"
+
+[[configuration]]
+label = "3s2"
+Eav = 0.0
+
+[[configuration]]
+label = "3s.3p"
+Eav = 30000.0
+"G1(3s,3p)" = { value = 12000.0, uncertainty = 150.0 }
+"zeta(3p)" = { value = 40.0, vary = "fixed" }
+
+[[configuration]]
+label = "3p2"
+Eav = 60000
+"F2(3p,3p)" = 30000.0
+"zeta(3p)" = { tie = "zeta(3p)@3s.3p", ratio = 1.1 }
+
+[[interaction]]
+between = ["3s2", "3p2"]
+"R1(3s3s,3p3p)" = 15000.0
+"#;
+
+    fn error(text: &str) -> String {
+        parse_model(text, "m.toml").unwrap_err().to_string()
+    }
+
+    #[test]
+    fn reads_the_documented_example() {
+        let loaded = parse_model(MG, "mg.toml").unwrap();
+        let model = &loaded.model;
+        assert_eq!(model.configurations.len(), 3);
+        assert_eq!(model.interactions, vec![(0, 2)]);
+        assert_eq!(model.parameters.len(), loaded.structure.parameters().len());
+        let zeta = model
+            .parameters
+            .iter()
+            .find(|p| model.full_name(&p.id) == "zeta(3p)@3p2")
+            .unwrap();
+        assert!((zeta.value - 44.0).abs() < 1e-12);
+        assert!(matches!(zeta.vary, Vary::Tied { ratio, .. } if ratio == 1.1));
+        let g = model
+            .parameters
+            .iter()
+            .find(|p| model.full_name(&p.id) == "G1(3s,3p)@3s.3p")
+            .unwrap();
+        assert_eq!(g.uncertainty, Some(150.0));
+        // Writing and reading back gives the same model.
+        let again = parse_model(&write_model(model), "again.toml").unwrap();
+        assert_eq!(&again.model, model);
+    }
+
+    #[test]
+    fn errors_name_file_line_and_key() {
+        let e = error(&MG.replace("\"zeta(3p)\" = { value = 40.0, vary = \"fixed\" }\n", ""));
+        assert!(e.starts_with("m.toml:9: key 'zeta(3p)': missing"), "{e}");
+        let e = error(&MG.replace("Eav = 60000", "Eav = \"lots\""));
+        assert!(e.starts_with("m.toml:16: key 'Eav': not a number"), "{e}");
+        let e = error(&MG.replace("\"F2(3p,3p)\"", "\"F4(3p)\""));
+        assert!(
+            e.starts_with("m.toml:17: key 'F4(3p)': not a parameter of configuration 3p2"),
+            "{e}"
+        );
+        assert!(e.contains("F2(3p)"), "{e}");
+        let e = error(&MG.replace("label = \"3p2\"", "label = \"3s3\""));
+        assert!(
+            e.starts_with("m.toml:15: key 'label'") && e.contains("3 electrons in a 3s subshell"),
+            "{e}"
+        );
+        let e = error(&MG.replace("label = \"3s.3p\"", "label = \"3s.3p2\""));
+        assert!(
+            e.starts_with("m.toml:9: key 'label'") && e.contains("3 electrons"),
+            "{e}"
+        );
+        let e = error(&MG.replace("vary = \"fixed\"", "vary = \"loose\""));
+        assert!(e.starts_with("m.toml:12: key 'zeta(3p)'"), "{e}");
+        let e = error(&MG.replace("zeta(3p)@3s.3p", "zeta(3p)@3s.4p"));
+        assert!(e.starts_with("m.toml:18: key 'zeta(3p)'"), "{e}");
+        let e = error(&MG.replace("\"R1(3s3s,3p3p)\"", "\"R1(3s3s,3p4p)\""));
+        assert!(e.starts_with("m.toml:22: key 'R1(3s3s,3p4p)'"), "{e}");
+        let e = error(&MG.replace(
+            "between = [\"3s2\", \"3p2\"]",
+            "between = [\"3s2\", \"3s.3p\"]",
+        ));
+        assert!(e.contains("opposite parity"), "{e}");
+        let e = error("species = \"Mg I\"\n[[configuration]]\nlabel = \"3s2\"\nEav = [1\n");
+        assert!(e.starts_with("m.toml:4"), "{e}");
+        let e = error("species = \"Mg I\"\n");
+        assert!(e.contains("no [[configuration]]"), "{e}");
+        let e = error(&MG.replace("ratio = 1.1", "ratio = 1.1, value = 3.0"));
+        assert!(e.contains("disagrees with the tie"), "{e}");
+    }
+}

@@ -1,0 +1,12 @@
+//! Integration tests, built as one binary: one module per topic, shared helpers in
+//! `util`.
+
+mod angular_tables;
+mod assign_cli;
+mod assign_reference;
+mod levels_cli;
+mod radial;
+mod structure_physics;
+mod structure_tables;
+mod units;
+mod util;
