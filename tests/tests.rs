@@ -5,6 +5,8 @@ mod angular_tables;
 mod assign_cli;
 mod assign_reference;
 mod levels_cli;
+mod optimize_cli;
+mod optimize_reference;
 mod radial;
 mod structure_physics;
 mod structure_tables;

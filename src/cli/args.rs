@@ -22,6 +22,9 @@ pub enum Command {
     Assign(super::assign::AssignArgs),
     /// Compute every level of an ion's level model in intermediate coupling.
     Levels(super::levels::LevelsArgs),
+    /// Optimise level energies from accepted line assignments (weighted least squares),
+    /// with Ritz wavenumbers and wavelengths.
+    Optimize(super::optimize::OptimizeArgs),
     /// Orbitals and radial integrals (E_av, F^k, G^k, R^k, ζ, ⟨r⟩) of configurations,
     /// from a self-consistent field.
     Radial(super::radial::RadialArgs),

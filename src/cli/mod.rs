@@ -8,6 +8,7 @@
 pub mod args;
 pub mod assign;
 pub mod levels;
+pub mod optimize;
 pub mod output;
 pub mod radial;
 
@@ -39,6 +40,7 @@ pub fn run(cli: Cli) -> Result<(), CliError> {
     match cli.command {
         Command::Assign(args) => assign::run(args),
         Command::Levels(args) => levels::run(args),
+        Command::Optimize(args) => optimize::run(args),
         Command::Radial(args) => radial::run(args),
     }
 }

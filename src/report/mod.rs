@@ -12,6 +12,7 @@
 mod assign_csv;
 mod assign_json;
 mod assign_table;
+mod optimize;
 
 use serde::Serialize;
 
@@ -23,6 +24,10 @@ use crate::units::{AirFormula, Medium};
 pub use assign_csv::assign_csv;
 pub use assign_json::assign_json;
 pub use assign_table::{TableOptions, assign_table};
+pub use optimize::{
+    OPTIMIZED_LEVEL_EXTRA_COLUMNS, OPTIMIZED_LINE_COLUMNS, OptimizeContext, optimize_description,
+    optimize_json, optimize_table, optimized_levels_csv, optimized_lines_csv,
+};
 
 /// What the outputs say about the measured line list.
 #[derive(Debug, Clone, PartialEq, Serialize)]

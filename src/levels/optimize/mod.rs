@@ -30,6 +30,15 @@
 //! both: a sparse factorisation after a reverse Cuthill–McKee ordering took 1.8 s for
 //! 1 000 levels and 7 000 lines; see the benchmark for the dense figures.
 
+pub mod input;
+pub mod spectrum;
+
+pub use input::{ClassifiedLine, ClassifiedLines, ClassifiedReadError, read_classified_lines};
+pub use spectrum::{
+    BlendPolicy, LevelResult, LineResult, OptimizationReport, OptimizeOptions, Selection,
+    SpeciesResult, SpectrumError, SystemResult, optimize_classified,
+};
+
 use faer::linalg::solvers::{DenseSolveCore, Solve};
 use faer::{Mat, Side};
 
