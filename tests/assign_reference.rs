@@ -58,7 +58,7 @@ fn helium() -> Species {
     "He I".parse().unwrap()
 }
 
-fn helium_predictions() -> Predictions {
+pub(crate) fn helium_predictions() -> Predictions {
     let table = EMBEDDED_TABLES
         .iter()
         .find(|t| t.species == "He I")
@@ -76,7 +76,7 @@ fn printed_uncertainty_angstrom(printed: &str) -> f64 {
 
 /// The observed He I wavelengths of the export as a measured line list (air, Å),
 /// one line per distinct observed wavelength, in order of first appearance.
-fn helium_measured_list() -> LineList {
+pub(crate) fn helium_measured_list() -> LineList {
     let mut printed: Vec<String> = Vec::new();
     for line in helium_lines().into_iter().filter(|l| l.observed) {
         if !printed.contains(&line.wavelength) {

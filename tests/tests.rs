@@ -6,6 +6,8 @@ mod assign_cli;
 mod assign_reference;
 mod levels_cli;
 mod lines_cli;
+mod optimize_cli;
+mod optimize_reference;
 mod radial;
 mod structure_physics;
 mod structure_tables;

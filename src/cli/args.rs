@@ -25,6 +25,9 @@ pub enum Command {
     /// Predict the E1 lines of a level model: wavelengths, line strengths, gf, A
     /// and flags.
     Lines(super::lines::LinesArgs),
+    /// Optimise level energies from accepted line assignments (weighted least squares),
+    /// with Ritz wavenumbers and wavelengths.
+    Optimize(super::optimize::OptimizeArgs),
     /// Orbitals and radial integrals (E_av, F^k, G^k, R^k, ζ, ⟨r⟩) of configurations,
     /// from a self-consistent field.
     Radial(super::radial::RadialArgs),

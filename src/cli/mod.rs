@@ -9,6 +9,7 @@ pub mod args;
 pub mod assign;
 pub mod levels;
 pub mod lines;
+pub mod optimize;
 pub mod output;
 pub mod radial;
 
@@ -41,6 +42,7 @@ pub fn run(cli: Cli) -> Result<(), CliError> {
         Command::Assign(args) => assign::run(args),
         Command::Levels(args) => levels::run(args),
         Command::Lines(args) => lines::run(args),
+        Command::Optimize(args) => optimize::run(args),
         Command::Radial(args) => radial::run(args),
     }
 }

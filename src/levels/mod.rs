@@ -12,6 +12,7 @@
 //! - [`Predictions`], [`PredictedLine`]: predicted lines sorted by wavenumber, with
 //!   their levels, flags and the rules applied, from a table ([`predict_from_table`])
 //!   or, later, from a level model. The matcher ([`crate::assign`]) reads only these.
+//! - [`optimize`]: level energies from assigned lines by weighted least squares.
 //!
 //! ```
 //! use termsight::levels::{EMBEDDED_TABLES, predict_from_table};
@@ -32,6 +33,7 @@ pub(crate) mod csv_text;
 pub mod e1;
 mod embedded;
 mod label;
+pub mod optimize;
 mod predicted;
 mod ritz;
 mod table;

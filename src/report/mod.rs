@@ -16,6 +16,7 @@ mod assign_csv;
 mod assign_json;
 mod assign_table;
 mod model_lines;
+mod optimize;
 
 use serde::Serialize;
 
@@ -30,6 +31,10 @@ pub use assign_table::{TableOptions, assign_table};
 pub use model_lines::{
     DipoleValue, LINE_COLUMNS, LineRow, LineSelection, LinesReport, lines_csv, lines_json,
     lines_table,
+};
+pub use optimize::{
+    OPTIMIZED_LEVEL_EXTRA_COLUMNS, OPTIMIZED_LINE_COLUMNS, OptimizeContext, optimize_description,
+    optimize_json, optimize_table, optimized_levels_csv, optimized_lines_csv,
 };
 
 /// What the outputs say about the measured line list.

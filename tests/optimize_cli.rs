@@ -1,0 +1,180 @@
+//! `termsight optimize` run as a program: the example's assignments through to a
+//! level table that `termsight assign --levels` reads back, and bad input.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output, Stdio};
+
+use termsight::levels::{EMBEDDED_TABLES, read_level_table};
+
+fn example() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("examples/he-ne-teaching-tube/lines.csv")
+}
+
+fn termsight(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_termsight"))
+        .args(args)
+        .stdin(Stdio::null())
+        .output()
+        .expect("the binary runs")
+}
+
+fn text(bytes: &[u8]) -> String {
+    String::from_utf8_lossy(bytes).into_owned()
+}
+
+/// The example assigned to CSV in `dir`.
+fn assigned(dir: &Path) -> PathBuf {
+    let path = dir.join("assigned.csv");
+    let out = termsight(&[
+        "assign",
+        example().to_str().unwrap(),
+        "--format",
+        "csv",
+        "-o",
+        path.to_str().unwrap(),
+    ]);
+    assert!(out.status.success(), "{}", text(&out.stderr));
+    path
+}
+
+#[test]
+fn optimised_levels_are_a_level_table_that_reads_back() {
+    let dir = tempfile::tempdir().unwrap();
+    let input = assigned(dir.path());
+    let levels = dir.path().join("levels.csv");
+    let lines = dir.path().join("ritz.csv");
+    let out = termsight(&[
+        "optimize",
+        input.to_str().unwrap(),
+        "--format",
+        "csv",
+        "-o",
+        levels.to_str().unwrap(),
+        "--lines-out",
+        lines.to_str().unwrap(),
+    ]);
+    assert!(out.status.success(), "{}", text(&out.stderr));
+    let table = read_level_table(std::fs::read(&levels).unwrap().as_slice(), "levels.csv").unwrap();
+    assert!(table.levels.len() > 10);
+    // Every level is one of the compiled (NIST ASD 2014) levels, moved by less than
+    // 0.5 cm⁻¹: the example was made from those levels with noise of a few
+    // thousandths of a nm (examples/he-ne-teaching-tube/README.md).
+    for level in &table.levels {
+        assert!(level.source.contains("optimised from"), "{}", level.source);
+        let compiled = EMBEDDED_TABLES
+            .iter()
+            .find(|t| t.species == level.species.to_string())
+            .unwrap()
+            .load()
+            .unwrap();
+        let published = compiled.find(level.species, &level.label).unwrap();
+        assert!(
+            (level.energy_cm1 - published.energy_cm1).abs() < 0.5,
+            "{} {}: {} vs {}",
+            level.species,
+            level.label,
+            level.energy_cm1,
+            published.energy_cm1
+        );
+    }
+    let ritz = std::fs::read_to_string(&lines).unwrap();
+    assert!(
+        ritz.lines()
+            .any(|l| l.starts_with("species,line,lower_configuration"))
+    );
+    assert!(
+        ritz.contains(",air,"),
+        "Ritz wavelengths above 200 nm are in air"
+    );
+    // The level table feeds the matcher.
+    let again = termsight(&[
+        "assign",
+        example().to_str().unwrap(),
+        "--levels",
+        levels.to_str().unwrap(),
+    ]);
+    assert!(again.status.success(), "{}", text(&again.stderr));
+}
+
+#[test]
+fn the_terminal_output_names_systems_references_and_flags() {
+    let dir = tempfile::tempdir().unwrap();
+    let input = assigned(dir.path());
+    let out = termsight(&["optimize", input.to_str().unwrap(), "--show-lines"]);
+    let stdout = text(&out.stdout);
+    assert!(out.status.success(), "{}", text(&out.stderr));
+    assert!(
+        stdout.contains("He I levels") && stdout.contains("Ne I levels"),
+        "{stdout}"
+    );
+    assert!(
+        stdout.contains("reference") && stdout.contains("single-line"),
+        "{stdout}"
+    );
+    assert!(stdout.contains("χ²"), "{stdout}");
+    let json = termsight(&["optimize", input.to_str().unwrap(), "--format", "json"]);
+    let value: serde_json::Value = serde_json::from_slice(&json.stdout).unwrap();
+    assert!(value["species"][0]["levels"].as_array().unwrap().len() > 3);
+}
+
+#[test]
+fn bad_input_gives_a_clear_error() {
+    let dir = tempfile::tempdir().unwrap();
+    let cases: [(&str, &[&str]); 4] = [
+        ("", &["empty"]),
+        (
+            "species,lower_term\nHe I,1S\n",
+            &["no column 'lower_configuration'"],
+        ),
+        (
+            "species,lower_configuration,lower_term,lower_J,upper_configuration,upper_term,upper_J,observed_wavenumber_cm1,observed_uncertainty_cm1\n\
+             He I,1s.2p,1P*,1,1s.3d,1D,2,abc,0.03\n",
+            &[
+                ":2: column 'observed_wavenumber_cm1'",
+                "'abc' is not a number",
+            ],
+        ),
+        (
+            "species,lower_configuration,lower_term,lower_J,upper_configuration,upper_term,upper_J,observed_wavenumber_cm1,observed_uncertainty_cm1\n\
+             He I,1s.2p,1P*,1,1s.3d,1D,7,14970,0.03\n",
+            &[":2: column 'upper_J'"],
+        ),
+    ];
+    for (content, expected) in cases {
+        let path = dir.path().join("bad.csv");
+        std::fs::write(&path, content).unwrap();
+        let out = termsight(&["optimize", path.to_str().unwrap()]);
+        let stderr = text(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{stderr}");
+        assert!(!stderr.contains("panicked"), "{stderr}");
+        assert!(stderr.contains(path.to_str().unwrap()), "{stderr}");
+        for part in expected {
+            assert!(stderr.contains(part), "expected '{part}' in: {stderr}");
+        }
+    }
+    let out = termsight(&["optimize", "/nonexistent/assigned.csv"]);
+    assert_eq!(out.status.code(), Some(2));
+    let input = assigned(dir.path());
+    let out = termsight(&[
+        "optimize",
+        input.to_str().unwrap(),
+        "--fix-level",
+        "1s.9z 1S 0",
+    ]);
+    assert!(
+        text(&out.stderr).contains("--fix-level"),
+        "{}",
+        text(&out.stderr)
+    );
+    let out = termsight(&[
+        "optimize",
+        input.to_str().unwrap(),
+        "--fix-level",
+        "1s.9s 1S 0",
+    ]);
+    assert!(
+        text(&out.stderr).contains("not a level of any accepted line"),
+        "{}",
+        text(&out.stderr)
+    );
+}
