@@ -8,7 +8,9 @@ use proptest::prelude::*;
 use super::operator::{CommonLayout, apply, hops};
 use super::*;
 use crate::notation::{Configuration, Term};
-use crate::structure::{Determinant, Level, ParameterId, Radial, Scope, SpinOrbitalLayout};
+use crate::structure::{
+    Determinant, Level, LevelStructure, ParameterId, Radial, Scope, SpinOrbitalLayout,
+};
 
 fn configs(labels: &[&str]) -> Vec<Configuration> {
     labels.iter().map(|c| c.parse().unwrap()).collect()
