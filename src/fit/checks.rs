@@ -195,10 +195,11 @@ mod tests {
 
     #[test]
     fn triplet_levels_alone_cannot_split_eav_from_g() {
-        // s.p without spin–orbit: every ³P level is E_av − G¹/3 (Condon & Shortley
-        // 1935, §7⁶), so ³P levels alone fix only E_av − G¹/3: ΔE_av = ΔG¹/3
-        // leaves them all unchanged.
-        let d = DMatrix::from_row_slice(3, 2, &[1.0, -1.0 / 3.0, 1.0, -1.0 / 3.0, 1.0, -1.0 / 3.0]);
+        // s.p without spin–orbit: E(¹P) − E(³P) = 2G¹/3 (Condon & Shortley 1935,
+        // §7⁶) about the centre of gravity E_av = [9E(³P) + 3E(¹P)]/12, so every ³P
+        // level is E_av − G¹/6: ³P levels alone fix only that combination, and
+        // ΔE_av = ΔG¹/6 leaves them all unchanged.
+        let d = DMatrix::from_row_slice(3, 2, &[1.0, -1.0 / 6.0, 1.0, -1.0 / 6.0, 1.0, -1.0 / 6.0]);
         let names = vec!["Eav@3s.3p".to_string(), "G1(3s,3p)@3s.3p".to_string()];
         let configs = [Some(0), Some(0)];
         let labels = ["3s.3p".to_string()];
@@ -215,7 +216,7 @@ mod tests {
         let c = &combinations[0];
         assert_eq!(c[1].0, "G1(3s,3p)@3s.3p");
         assert!(
-            (c[1].1 - 1.0).abs() < 1e-12 && (c[0].1 - 1.0 / 3.0).abs() < 1e-12,
+            (c[1].1 - 1.0).abs() < 1e-12 && (c[0].1 - 1.0 / 6.0).abs() < 1e-12,
             "{c:?}"
         );
         assert!(e.to_string().contains("Eav@3s.3p"), "{e}");

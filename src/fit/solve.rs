@@ -530,3 +530,196 @@ pub(crate) fn inverse_normal_matrix(jacobian: &DMatrix<f64>) -> Option<DMatrix<f
     }
     Some(c)
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::structure::model::parse_model;
+
+    /// Mg-like 3s² + 3s3p + 3p² with configuration interaction and ties: every kind
+    /// of parameter and link.
+    const MG: &str = r#"species = "Mg I"
+[[configuration]]
+label = "3s2"
+Eav = { value = 0.0, vary = "fixed" }
+[[configuration]]
+label = "3s.3p"
+Eav = 30000.0
+"G1(3s,3p)" = 12000.0
+"zeta(3p)" = 60.0
+[[configuration]]
+label = "3p2"
+Eav = 60000.0
+"F2(3p)" = { tie = "G1(3s,3p)", ratio = 2.5 }
+"zeta(3p)" = { tie = "zeta(3p)@3s.3p", ratio = 1.1 }
+[[interaction]]
+between = ["3s2", "3p2"]
+"R1(3s3s,3p3p)" = 15000.0
+"#;
+
+    #[test]
+    fn hellmann_feynman_jacobian_matches_finite_differences() {
+        // ∂E/∂x by the chain rule over ties against central differences
+        // [E(x + h) − E(x − h)]/2h, whose error is O(h²) (any numerical-analysis
+        // text); the levels are identified by (block, J block, root), which do not
+        // change over ±h here.
+        let loaded = parse_model(MG, "mg.toml").unwrap();
+        let structure = &loaded.structure;
+        let map = ParameterMap::new(&loaded.model, structure).unwrap();
+        let x = map.start();
+        let levels = structure.levels(&map.values(&x)).unwrap();
+        let analytic = derivative_matrix(&map, levels.len(), |i| &levels[i].derivatives);
+        let key = |l: &Level| (l.block, l.j_block, l.root);
+        for j in 0..map.variable_count() {
+            let h = 1e-3 * x[j].abs().max(1.0);
+            let mut up = x.clone();
+            up[j] += h;
+            let mut down = x.clone();
+            down[j] -= h;
+            let e_up = structure.levels(&map.values(&up)).unwrap();
+            let e_down = structure.levels(&map.values(&down)).unwrap();
+            for (i, level) in levels.iter().enumerate() {
+                let find = |set: &[Level]| {
+                    set.iter()
+                        .find(|l| key(l) == key(level))
+                        .map(|l| l.energy_cm1)
+                        .unwrap()
+                };
+                let numeric = (find(&e_up) - find(&e_down)) / (2.0 * h);
+                assert!(
+                    (numeric - analytic[(i, j)]).abs() < 1e-6,
+                    "level {i}, variable {j}: {numeric} vs {}",
+                    analytic[(i, j)]
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn tracking_follows_a_state_through_a_crossing() {
+        // 1s3s and 1s4s without interaction: their ³S₁ states are the basis states
+        // themselves whatever the energies (common practice, no source). Moving
+        // E_av(1s3s) above E_av(1s4s) swaps their energy order; the overlap must still
+        // find the 1s3s state.
+        let text = "species = \"He I\"\n[[configuration]]\nlabel = \"1s.3s\"\nEav = 184000.0\n\
+                    \"G0(1s,3s)\" = 800.0\n[[configuration]]\nlabel = \"1s.4s\"\nEav = 190600.0\n\
+                    \"G0(1s,4s)\" = 300.0\n";
+        let loaded = parse_model(text, "he.toml").unwrap();
+        let structure = &loaded.structure;
+        let map = ParameterMap::new(&loaded.model, structure).unwrap();
+        let before = structure.levels(&map.values(&map.start())).unwrap();
+        let is_3s = |l: &Level| {
+            structure
+                .state_label(l.block, l.composition[0].state)
+                .to_string()
+                == "1s.3s 3S"
+        };
+        let start = before
+            .iter()
+            .position(|l| l.j.twice == 2 && is_3s(l))
+            .unwrap();
+        let mut x = map.start();
+        x[0] = 195000.0; // E_av(1s3s) now above 1s4s
+        let after = structure.levels(&map.values(&x)).unwrap();
+        let chosen = track(
+            &after,
+            &[(before[start].block, before[start].j_block)],
+            &[before[start].eigenvector.clone()],
+        );
+        assert!(is_3s(&after[chosen[0]]));
+        assert_ne!(
+            after[chosen[0]].root, before[start].root,
+            "the energy order did change"
+        );
+    }
+
+    #[test]
+    fn a_fit_through_a_crossing_keeps_the_labels() {
+        // An invented level set in which 1s3s lies above 1s4s: the fit must carry
+        // E_av(1s3s) through E_av(1s4s). Four levels, four free parameters: in each
+        // configuration E(¹S) − E(³S) = 2G⁰ (Condon & Shortley 1935, §7⁶) and E_av is
+        // the centre of gravity [3E(³S) + E(¹S)]/4 (Slater 1960, vol. 1, §14-3), so
+        // the fit is exact: E_av(1s3s) = (3·195000 + 196000)/4 = 195250.
+        let text = "species = \"He I\"\n[[configuration]]\nlabel = \"1s.3s\"\nEav = 184000.0\n\
+                    \"G0(1s,3s)\" = 800.0\n[[configuration]]\nlabel = \"1s.4s\"\nEav = 190600.0\n\
+                    \"G0(1s,4s)\" = 300.0\n";
+        let loaded = parse_model(text, "he.toml").unwrap();
+        let table = crate::levels::read_level_table(
+            "species,configuration,term,J,energy_cm1,uncertainty_cm1,source\n\
+             He I,1s.3s,3S,1,195000,0.01,invented\nHe I,1s.3s,1S,0,196000,0.01,invented\n\
+             He I,1s.4s,3S,1,190300,0.01,invented\nHe I,1s.4s,1S,0,190900,0.01,invented\n"
+                .as_bytes(),
+            "crossing.csv",
+        )
+        .unwrap();
+        let result = fit_levels(
+            &loaded.model,
+            &loaded.structure,
+            &table.levels,
+            &FitOptions::default(),
+            |_| {},
+        )
+        .unwrap();
+        assert_eq!(result.convergence, Convergence::Converged);
+        for level in &result.levels {
+            assert!(level.difference_cm1.abs() < 1e-6, "{level:?}");
+            let label = &level.experimental.label;
+            assert_eq!(
+                level.composition[0].label,
+                format!("{} {}", label.configuration, label.term)
+            );
+        }
+        let value = |name: &str| {
+            result
+                .parameters
+                .iter()
+                .find(|p| p.name == name)
+                .unwrap()
+                .fitted_cm1
+        };
+        assert!((value("Eav@1s.3s") - 195250.0).abs() < 1e-6);
+        assert!((value("G0(1s,4s)@1s.4s") - 300.0).abs() < 1e-6);
+    }
+
+    #[test]
+    fn progress_hears_every_accepted_step() {
+        let loaded = parse_model(MG, "mg.toml").unwrap();
+        let truth = loaded.model.values_for(&loaded.structure);
+        let levels = loaded.structure.levels(&truth).unwrap();
+        // Levels computed from the model itself, then labelled by their leading
+        // component; the fit starts 5 % off in G¹.
+        let table: Vec<crate::levels::Level> = levels
+            .iter()
+            .map(|l| {
+                let lead = loaded
+                    .structure
+                    .state_label(l.block, l.composition[0].state);
+                crate::levels::Level {
+                    species: loaded.model.species,
+                    label: format!("{lead} {}", l.j).parse().unwrap(),
+                    energy_cm1: l.energy_cm1,
+                    uncertainty_cm1: 0.01,
+                    source: "computed".into(),
+                }
+            })
+            .collect();
+        let mut model = loaded.model.clone();
+        for p in &mut model.parameters {
+            if p.id.radial.to_string() == "G1(3s,3p)" {
+                p.value *= 1.05;
+            }
+        }
+        let mut heard = Vec::new();
+        let result = fit_levels(
+            &model,
+            &loaded.structure,
+            &table,
+            &FitOptions::default(),
+            |p| heard.push(p),
+        )
+        .unwrap();
+        assert_eq!(heard.len(), result.iterations);
+        assert_eq!(heard[0].iteration, 0);
+        assert!(heard[0].rms_cm1 > 1.0 && result.rms_cm1 < 1e-6, "{heard:?}");
+    }
+}
