@@ -4,6 +4,7 @@
 mod angular_tables;
 mod assign_cli;
 mod assign_reference;
+mod fit_cli;
 mod fit_physics;
 mod levels_cli;
 mod radial;

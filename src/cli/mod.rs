@@ -7,6 +7,7 @@
 
 pub mod args;
 pub mod assign;
+pub mod fit;
 pub mod levels;
 pub mod output;
 pub mod radial;
@@ -38,6 +39,7 @@ pub fn main() -> ExitCode {
 pub fn run(cli: Cli) -> Result<(), CliError> {
     match cli.command {
         Command::Assign(args) => assign::run(args),
+        Command::Fit(args) => fit::run(args),
         Command::Levels(args) => levels::run(args),
         Command::Radial(args) => radial::run(args),
     }

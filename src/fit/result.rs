@@ -167,7 +167,8 @@ pub struct FitResult {
     /// [`Weighting::Uncertainty`]; `None` for equal weights or without degrees of
     /// freedom.
     pub reduced_chi_square: Option<f64>,
-    /// Levenberg–Marquardt iterations (Jacobians computed).
+    /// Levenberg–Marquardt iterations (Jacobians computed, the first at the
+    /// starting values); 0 when nothing was free.
     pub iterations: usize,
     /// Evaluations of the levels.
     pub evaluations: usize,

@@ -491,7 +491,7 @@ pub fn fit_levels(
         sigma_cm1,
         rms_cm1: (sum_squares / n as f64).sqrt(),
         reduced_chi_square,
-        iterations: problem.iterations.get(),
+        iterations: if p == 0 { 0 } else { problem.iterations.get() },
         evaluations: problem.evaluations.get(),
         convergence,
     })

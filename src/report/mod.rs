@@ -8,10 +8,14 @@
 //! [`assign_table`] gives the terminal table, [`assign_csv`] the CSV (the format of
 //! [`crate::assign::ASSIGN_COLUMNS`], which [`crate::assign::read_assignments`] reads
 //! back) and [`assign_json`] the JSON.
+//!
+//! For `termsight fit`, a [`FitReport`] wraps a [`crate::fit::FitResult`] with its
+//! sources; [`fit_table`] and [`fit_json`] write it.
 
 mod assign_csv;
 mod assign_json;
 mod assign_table;
+mod fit;
 
 use serde::Serialize;
 
@@ -23,6 +27,7 @@ use crate::units::{AirFormula, Medium};
 pub use assign_csv::assign_csv;
 pub use assign_json::assign_json;
 pub use assign_table::{TableOptions, assign_table};
+pub use fit::{FitReport, fit_json, fit_table};
 
 /// What the outputs say about the measured line list.
 #[derive(Debug, Clone, PartialEq, Serialize)]
