@@ -6,6 +6,7 @@ mod assign_cli;
 mod assign_reference;
 mod fit_cli;
 mod fit_physics;
+mod fit_roundtrip;
 mod levels_cli;
 mod radial;
 mod structure_physics;

@@ -8,8 +8,10 @@
 //!    each eigenvector's LS composition: the candidate's score is the percentage of
 //!    its composition in basis states of that configuration and term (parent terms,
 //!    where both labels give them, must agree too for the first rank of the score).
-//!    Pairs are taken greedily, best score first, each state and each level once;
-//!    equal scores are decided by the smaller energy difference;
+//!    In each (parity, J) block the levels take the states that give the largest
+//!    total score (the Hungarian method), each state once; where exchanging the
+//!    states of two levels costs less than 10 % of composition in all (nearly
+//!    equal mixtures, or the same label twice), energy order decides;
 //! 3. for a label in pair or jj coupling, which LS composition cannot check, by
 //!    energy order: within one (parity, J) block and configuration, the k-th lowest
 //!    experimental level goes to the k-th lowest free state whose largest share is
@@ -23,6 +25,12 @@
 //! of eigenvectors ([`track`]): in each (parity, J) block the state with the largest
 //! |⟨ψ_previous|ψ_new⟩| takes the level, so two levels that cross as the
 //! parameters move keep their labels (energy order would swap them).
+//!
+//! Where states are strongly mixed, the compositions at the starting values may
+//! point a label at the wrong one of two states; the fit then converges with that
+//! pair exchanged. So after convergence the LS-labelled levels are matched afresh
+//! at the fitted values (the energy-order ones keep their tracked states), and the
+//! fit is repeated from there while that changes any assignment.
 
 use std::collections::HashMap;
 
@@ -154,22 +162,23 @@ fn ls_score(structure: &LevelStructure, level: &Level, label: &levels::LevelLabe
     score
 }
 
-/// A score in millionths of a percent, so that equal shares compare equal.
-fn quantised(percent: f64) -> i64 {
-    (percent * 1e6).round() as i64
-}
-
 /// Match experimental levels (all of the model's species) to computed `levels`
-/// (as [`LevelStructure::levels`] returns them). Returns the assignments and the
-/// unmatched levels with their reasons, both in the order of `experimental`.
+/// (as [`LevelStructure::levels`] returns them), keeping the assignments in `keep`
+/// as they are. Returns the assignments and the unmatched levels with their
+/// reasons, both in the order of `experimental`.
 pub(crate) fn match_levels(
     structure: &LevelStructure,
     levels: &[Level],
     experimental: &[&levels::Level],
+    keep: &[Assignment],
 ) -> (Vec<Assignment>, Vec<(usize, UnmatchedReason)>) {
     let mut taken = vec![false; levels.len()];
     let mut assigned: Vec<Option<Assignment>> = vec![None; experimental.len()];
     let mut reasons: Vec<Option<UnmatchedReason>> = vec![None; experimental.len()];
+    for a in keep {
+        taken[a.level] = true;
+        assigned[a.experimental] = Some(*a);
+    }
 
     // Candidate states of each experimental level: same parity and J.
     let mut candidates: Vec<Vec<usize>> = Vec::with_capacity(experimental.len());
@@ -193,35 +202,56 @@ pub(crate) fn match_levels(
         candidates.push(list);
     }
 
-    // LS labels: greedy over (level, state) pairs, best composition first.
-    let mut pairs = Vec::new();
+    // LS labels: per (parity, J) block, the assignment with the largest total
+    // score, then near-ties settled by energy order.
+    let mut scores: HashMap<(usize, usize), f64> = HashMap::new();
+    let mut by_block: HashMap<(usize, usize), Vec<usize>> = HashMap::new();
     for (e, level) in experimental.iter().enumerate() {
-        if reasons[e].is_some() || !matches!(level.label.term, Term::Ls(_)) {
+        if reasons[e].is_some() || assigned[e].is_some() || !matches!(level.label.term, Term::Ls(_))
+        {
             continue;
         }
-        for &i in &candidates[e] {
+        let mut any = false;
+        for &i in candidates[e].iter().filter(|&&i| !taken[i]) {
             let score = ls_score(structure, &levels[i], &level.label);
             if score[1] > 0.0 {
-                let distance = (levels[i].energy_cm1 - level.energy_cm1).abs();
-                pairs.push((
-                    [
-                        quantised(score[0]),
-                        quantised(score[1]),
-                        quantised(score[2]),
-                    ],
-                    distance,
-                    e,
-                    i,
-                ));
+                // The share with parents and repeat index as in the label counts;
+                // the looser shares decide only between otherwise equal states.
+                scores.insert((e, i), score[0] + 0.01 * score[1] + 1e-4 * score[2]);
+                any = true;
             }
         }
-        if !pairs.iter().any(|p| p.2 == e) {
+        if any {
+            let first = &levels[candidates[e][0]];
+            by_block
+                .entry((first.block, first.j_block))
+                .or_default()
+                .push(e);
+        } else {
             reasons[e] = Some(UnmatchedReason::TermNotInComposition);
         }
     }
-    pairs.sort_by(|a, b| b.0.cmp(&a.0).then(a.1.total_cmp(&b.1)));
-    for (_, _, e, i) in pairs {
-        if assigned[e].is_none() && !taken[i] {
+    let mut blocks: Vec<_> = by_block.into_iter().collect();
+    blocks.sort_unstable_by_key(|(key, _)| *key);
+    for ((block, j_block), members) in blocks {
+        let states: Vec<usize> = (0..levels.len())
+            .filter(|&i| levels[i].block == block && levels[i].j_block == j_block && !taken[i])
+            .collect();
+        let weights: Vec<Vec<Option<f64>>> = members
+            .iter()
+            .map(|&e| {
+                states
+                    .iter()
+                    .map(|&i| scores.get(&(e, i)).copied())
+                    .collect()
+            })
+            .collect();
+        let mut pairs: Vec<(usize, usize)> = best_assignment(&weights)
+            .into_iter()
+            .map(|(row, column)| (members[row], states[column]))
+            .collect();
+        settle_near_ties(&mut pairs, &scores, experimental, levels);
+        for (e, i) in pairs {
             taken[i] = true;
             assigned[e] = Some(Assignment {
                 experimental: e,
@@ -234,7 +264,8 @@ pub(crate) fn match_levels(
     // Pair- and jj-coupled labels: energy order within (block, J, configuration).
     let mut groups: HashMap<(usize, usize, usize), Vec<usize>> = HashMap::new();
     for (e, level) in experimental.iter().enumerate() {
-        if reasons[e].is_some() || matches!(level.label.term, Term::Ls(_)) {
+        if reasons[e].is_some() || assigned[e].is_some() || matches!(level.label.term, Term::Ls(_))
+        {
             continue;
         }
         let Some(configuration) = structure
@@ -293,6 +324,142 @@ pub(crate) fn match_levels(
         }
     }
     (assignments, unmatched)
+}
+
+/// Two assignments whose exchange lowers the total score by less than this (in
+/// percent of composition) are a near-tie, decided by energy order.
+const NEAR_TIE_PERCENT: f64 = 10.0;
+
+/// Exchange the states of pairs of levels whose energy order disagrees with their
+/// states' order when that costs less than [`NEAR_TIE_PERCENT`] of score: two
+/// states of nearly equal composition are told apart by energy order, which a
+/// shift of all computed energies leaves alone. Levels with the same label always
+/// take their states in energy order.
+fn settle_near_ties(
+    pairs: &mut [(usize, usize)],
+    scores: &HashMap<(usize, usize), f64>,
+    experimental: &[&levels::Level],
+    levels: &[Level],
+) {
+    let score = |e: usize, i: usize| scores.get(&(e, i)).copied();
+    // Each exchange puts one more pair in order, so n² rounds suffice.
+    for _ in 0..pairs.len() * pairs.len() {
+        let mut changed = false;
+        for a in 0..pairs.len() {
+            for b in a + 1..pairs.len() {
+                let ((ea, ia), (eb, ib)) = (pairs[a], pairs[b]);
+                let experimental_order = experimental[ea].energy_cm1 - experimental[eb].energy_cm1;
+                let state_order = levels[ia].energy_cm1 - levels[ib].energy_cm1;
+                if experimental_order * state_order >= 0.0 {
+                    continue;
+                }
+                let (Some(now_a), Some(now_b), Some(swap_a), Some(swap_b)) =
+                    (score(ea, ia), score(eb, ib), score(ea, ib), score(eb, ia))
+                else {
+                    continue;
+                };
+                if now_a + now_b - (swap_a + swap_b) < NEAR_TIE_PERCENT {
+                    pairs[a].1 = ib;
+                    pairs[b].1 = ia;
+                    changed = true;
+                }
+            }
+        }
+        if !changed {
+            break;
+        }
+    }
+}
+
+/// The rows-to-columns assignment of largest total weight, each row and column used
+/// at most once; `None` marks a forbidden pair, never returned. The Hungarian
+/// method (Kuhn 1955; Munkres 1957) in its O(n²m) form with row and column
+/// potentials. Written here because the blocks are small (tens to hundreds of
+/// states) and the crates that offer it want integer weights and bring a tree of
+/// dependencies for these forty lines.
+fn best_assignment(weights: &[Vec<Option<f64>>]) -> Vec<(usize, usize)> {
+    let rows = weights.len();
+    let columns = weights.first().map_or(0, Vec::len);
+    if rows == 0 || columns == 0 {
+        return Vec::new();
+    }
+    // Minimise cost = −weight with the smaller side as rows. A forbidden pair
+    // costs 0, as much as leaving the row unassigned, so the total is the largest
+    // over matchings of allowed pairs (weights are positive) and forbidden pairs
+    // picked are dropped at the end.
+    const FORBIDDEN: f64 = 0.0;
+    let transposed = rows > columns;
+    let (n, m) = if transposed {
+        (columns, rows)
+    } else {
+        (rows, columns)
+    };
+    let cost = |r: usize, c: usize| {
+        let w = if transposed {
+            weights[c][r]
+        } else {
+            weights[r][c]
+        };
+        w.map_or(FORBIDDEN, |w| -w)
+    };
+    let mut u = vec![0.0; n + 1];
+    let mut v = vec![0.0; m + 1];
+    let mut owner = vec![0usize; m + 1];
+    let mut way = vec![0usize; m + 1];
+    for row in 1..=n {
+        owner[0] = row;
+        let mut column = 0;
+        let mut min_v = vec![f64::INFINITY; m + 1];
+        let mut used = vec![false; m + 1];
+        loop {
+            used[column] = true;
+            let current = owner[column];
+            let mut delta = f64::INFINITY;
+            let mut next = 0;
+            for j in 1..=m {
+                if used[j] {
+                    continue;
+                }
+                let reduced = cost(current - 1, j - 1) - u[current] - v[j];
+                if reduced < min_v[j] {
+                    min_v[j] = reduced;
+                    way[j] = column;
+                }
+                if min_v[j] < delta {
+                    delta = min_v[j];
+                    next = j;
+                }
+            }
+            for j in 0..=m {
+                if used[j] {
+                    u[owner[j]] += delta;
+                    v[j] -= delta;
+                } else {
+                    min_v[j] -= delta;
+                }
+            }
+            column = next;
+            if owner[column] == 0 {
+                break;
+            }
+        }
+        loop {
+            let previous = way[column];
+            owner[column] = owner[previous];
+            column = previous;
+            if column == 0 {
+                break;
+            }
+        }
+    }
+    (1..=m)
+        .filter(|&j| owner[j] != 0)
+        .map(|j| {
+            let (r, c) = (owner[j] - 1, j - 1);
+            if transposed { (c, r) } else { (r, c) }
+        })
+        .filter(|&(r, c)| weights[r][c].is_some())
+        .collect()
 }
 
 /// The computed levels of every (parity block, J block), by index into `levels`.
@@ -364,6 +531,56 @@ mod tests {
         }
     }
 
+    /// The largest total weight of any matching of allowed pairs, by trying them all.
+    fn brute_force(weights: &[Vec<Option<f64>>], row: usize, used: &mut Vec<bool>) -> f64 {
+        if row == weights.len() {
+            return 0.0;
+        }
+        let mut best = brute_force(weights, row + 1, used);
+        for c in 0..used.len() {
+            if let (false, Some(w)) = (used[c], weights[row][c]) {
+                used[c] = true;
+                best = best.max(w + brute_force(weights, row + 1, used));
+                used[c] = false;
+            }
+        }
+        best
+    }
+
+    proptest::proptest! {
+        #![proptest_config(proptest::test_runner::Config::with_cases(200))]
+        #[test]
+        fn the_assignment_has_the_largest_total_weight(
+            rows in 1usize..6,
+            columns in 1usize..6,
+            cells in proptest::collection::vec(proptest::option::weighted(0.7, 0.1f64..100.0), 36),
+        ) {
+            // Against exhaustive search (the definition of the optimum).
+            let weights: Vec<Vec<Option<f64>>> = (0..rows)
+                .map(|r| (0..columns).map(|c| cells[r * 6 + c]).collect())
+                .collect();
+            let pairs = best_assignment(&weights);
+            let mut rows_used = vec![false; rows];
+            let mut columns_used = vec![false; columns];
+            let mut total = 0.0;
+            for &(r, c) in &pairs {
+                proptest::prop_assert!(!rows_used[r] && !columns_used[c]);
+                rows_used[r] = true;
+                columns_used[c] = true;
+                total += weights[r][c].unwrap();
+            }
+            let best = brute_force(&weights, 0, &mut vec![false; columns]);
+            proptest::prop_assert!((total - best).abs() < 1e-9, "{} vs {}", total, best);
+        }
+    }
+
+    #[test]
+    fn a_strong_match_is_not_given_up_for_two_weak_ones() {
+        // Level 0 is 100 % state 0; level 1 fits state 0 a little and nothing else.
+        let weights = vec![vec![Some(100.0), Some(1.0)], vec![Some(1.0), None]];
+        assert_eq!(best_assignment(&weights), vec![(0, 0)]);
+    }
+
     #[test]
     fn configurations_compare_without_closed_core_and_parents() {
         let c = |s: &str| s.parse::<Configuration>().unwrap();
@@ -403,7 +620,7 @@ mod tests {
             table_level("3s.3p 1D° 2", 9000.0),
         ];
         let refs: Vec<&TableLevel> = experimental.iter().collect();
-        let (assignments, unmatched) = match_levels(&structure, &levels, &refs);
+        let (assignments, unmatched) = match_levels(&structure, &levels, &refs, &[]);
         assert_eq!(assignments.len(), 4);
         for a in &assignments {
             let level = &levels[a.level];
@@ -452,7 +669,7 @@ mod tests {
             ne("2s2.2p5.(2P°<3/2>).3s 2[3/2]° 1", 134459.2871),
         ];
         let refs: Vec<&TableLevel> = experimental.iter().collect();
-        let (assignments, unmatched) = match_levels(&structure, &levels, &refs);
+        let (assignments, unmatched) = match_levels(&structure, &levels, &refs, &[]);
         assert!(unmatched.is_empty());
         assert!(
             assignments

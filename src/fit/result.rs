@@ -174,6 +174,11 @@ pub struct FitResult {
     pub evaluations: usize,
     /// How the iterations ended.
     pub convergence: Convergence,
+    /// Fits made: the first, and one more each time matching the levels afresh at
+    /// the fitted values changed an assignment.
+    pub passes: usize,
+    /// False when the assignments still changed after the last pass.
+    pub assignment_settled: bool,
 }
 
 impl FitResult {

@@ -31,7 +31,7 @@ use super::FitError;
 use super::checks::{
     CheckContext, RANK_TOLERANCE, check_determined, null_directions, scaled_columns,
 };
-use super::matching::{MatchedBy, match_levels, track};
+use super::matching::{Assignment, MatchedBy, match_levels, track};
 use super::options::{FitOptions, Weighting};
 use super::parameters::{Link, ParameterMap};
 use super::result::{
@@ -113,19 +113,9 @@ impl Problem<'_> {
         )
     }
 
-    /// ∂E/∂x (unweighted), targets × variables.
-    fn derivatives(&self, evaluation: &Evaluation) -> DMatrix<f64> {
-        derivative_matrix(self.map, self.targets.len(), |t| {
-            &evaluation.state(t).derivatives
-        })
-    }
-
     fn weighted_jacobian(&self, evaluation: &Evaluation) -> DMatrix<f64> {
-        let mut j = self.derivatives(evaluation);
-        for (mut row, target) in j.row_iter_mut().zip(self.targets) {
-            row *= target.weight;
-        }
-        j
+        let weights: Vec<f64> = self.targets.iter().map(|t| t.weight).collect();
+        weighted(derivatives(self.map, evaluation), &weights)
     }
 
     fn rms(&self, evaluation: &Evaluation) -> f64 {
@@ -179,6 +169,24 @@ impl LeastSquaresProblem<f64, Dyn, Dyn> for Problem<'_> {
     }
 }
 
+/// The fit is repeated with the levels matched afresh at most this many times.
+const MAX_PASSES: usize = 10;
+
+/// ∂E/∂x (unweighted) of the evaluation's targets, targets × variables.
+fn derivatives(map: &ParameterMap, evaluation: &Evaluation) -> DMatrix<f64> {
+    derivative_matrix(map, evaluation.chosen.len(), |t| {
+        &evaluation.state(t).derivatives
+    })
+}
+
+/// The rows of `matrix` times `weights`.
+fn weighted(mut matrix: DMatrix<f64>, weights: &[f64]) -> DMatrix<f64> {
+    for (mut row, w) in matrix.row_iter_mut().zip(weights) {
+        row *= *w;
+    }
+    matrix
+}
+
 /// Targets × variables matrix of ∂E/∂x from each target's ∂E/∂P.
 fn derivative_matrix<'a>(
     map: &ParameterMap,
@@ -200,6 +208,11 @@ fn derivative_matrix<'a>(
 /// Fit the free parameters of `model` (whose structure is `structure`) to the
 /// levels of its species in `experimental`; levels of other species are counted
 /// and left alone. `progress` hears of every accepted step.
+///
+/// After convergence the LS-labelled levels are matched afresh at the fitted
+/// values (see [`super::matching`]); while that changes an assignment the fit is
+/// repeated from the fitted values, at most ten times in all
+/// ([`FitResult::passes`], [`FitResult::assignment_settled`]).
 ///
 /// Fails, before iterating, when the matched levels cannot determine the free
 /// parameters (see [`super::checks`]), naming the parameters.
@@ -225,7 +238,8 @@ pub fn fit_levels(
         });
     }
     let initial_levels = structure.levels(&map.initial)?;
-    let (assignments, unmatched) = match_levels(structure, &initial_levels, &of_species);
+    let (mut assignments, mut unmatched) =
+        match_levels(structure, &initial_levels, &of_species, &[]);
     if assignments.is_empty() {
         return Err(FitError::NothingMatched {
             species: model.species,
@@ -239,32 +253,11 @@ pub fn fit_levels(
         });
     }
     let weighting = options.weighting();
-    let targets: Vec<Target> = assignments
-        .iter()
-        .map(|a| {
-            let level = &initial_levels[a.level];
-            let experimental = of_species[a.experimental];
-            Target {
-                experimental: a.experimental,
-                block: (level.block, level.j_block),
-                energy_cm1: experimental.energy_cm1,
-                weight: weighting.factor(experimental.uncertainty_cm1),
-                matched_by: a.matched_by,
-            }
-        })
-        .collect();
-
-    // Can the levels determine the free parameters?
     let names: Vec<String> = map
         .leaders
         .iter()
         .map(|&s| structure.parameters()[s].full_name(structure.configurations()))
         .collect();
-    let weights: Vec<f64> = targets.iter().map(|t| t.weight).collect();
-    let initial = Evaluation {
-        chosen: assignments.iter().map(|a| a.level).collect(),
-        levels: initial_levels,
-    };
     let variable_configuration: Vec<Option<usize>> = map
         .leaders
         .iter()
@@ -273,95 +266,163 @@ pub fn fit_levels(
             Scope::Interaction(..) => None,
         })
         .collect();
-    let level_configuration: Vec<usize> = (0..targets.len())
-        .map(|t| initial.state(t).configuration)
-        .collect();
     let configuration_names: Vec<String> = structure
         .configurations()
         .iter()
         .map(ToString::to_string)
         .collect();
-    let start_derivatives =
-        derivative_matrix(&map, targets.len(), |t| &initial.state(t).derivatives);
-    check_determined(
-        &start_derivatives,
-        &weights,
-        &CheckContext {
-            names: &names,
-            variable_configuration: &variable_configuration,
-            level_configuration: &level_configuration,
-            configuration_names: &configuration_names,
-        },
-    )?;
-
-    // Iterate.
     let p = map.variable_count();
-    let start = DVector::from_vec(map.start());
     let progress: &mut dyn FnMut(FitProgress) = &mut progress;
-    let mut problem = Problem {
-        structure,
-        map: &map,
-        targets: &targets,
-        blocks: targets.iter().map(|t| t.block).collect(),
-        x: start,
-        reference: RefCell::new(
-            (0..targets.len())
-                .map(|t| initial.state(t).eigenvector.clone())
-                .collect(),
-        ),
-        current: Some(initial),
-        iterations: Cell::new(0),
-        evaluations: Cell::new(1),
-        progress: RefCell::new(progress),
-    };
-    let convergence = if p == 0 {
-        if let Some(evaluation) = problem.current.clone() {
-            problem.accept(&evaluation);
+    let mut x = DVector::from_vec(map.start());
+    let mut levels_now = initial_levels;
+    let mut iterations = 0;
+    let mut evaluations = 1;
+    let mut passes = 0;
+    let (targets, evaluation, convergence, assignment_settled) = loop {
+        passes += 1;
+        let targets: Vec<Target> = assignments
+            .iter()
+            .map(|a| {
+                let level = &levels_now[a.level];
+                let experimental = of_species[a.experimental];
+                Target {
+                    experimental: a.experimental,
+                    block: (level.block, level.j_block),
+                    energy_cm1: experimental.energy_cm1,
+                    weight: weighting.factor(experimental.uncertainty_cm1),
+                    matched_by: a.matched_by,
+                }
+            })
+            .collect();
+        let start = Evaluation {
+            chosen: assignments.iter().map(|a| a.level).collect(),
+            levels: levels_now,
+        };
+
+        // Can the levels determine the free parameters? Asked before the first
+        // pass only: later passes start at fitted values, where an interaction
+        // parameter driven near 0 has no first-order effect yet is determined.
+        if passes == 1 {
+            let weights: Vec<f64> = targets.iter().map(|t| t.weight).collect();
+            let level_configuration: Vec<usize> = (0..targets.len())
+                .map(|t| start.state(t).configuration)
+                .collect();
+            check_determined(
+                &derivatives(&map, &start),
+                &weights,
+                &CheckContext {
+                    names: &names,
+                    variable_configuration: &variable_configuration,
+                    level_configuration: &level_configuration,
+                    configuration_names: &configuration_names,
+                },
+            )?;
         }
-        Convergence::NothingToFit
-    } else {
-        let mut lm = LevenbergMarquardt::new();
-        if let Some(limit) = options.max_evaluations() {
-            lm = lm.with_patience(limit.div_ceil(p + 1).max(1));
-        }
-        let (solved, report) = lm.minimize(problem);
-        problem = solved;
-        match report.termination {
-            TerminationReason::ResidualsZero
-            | TerminationReason::Orthogonal
-            | TerminationReason::Converged { .. }
-            | TerminationReason::NoImprovementPossible(_) => Convergence::Converged,
-            TerminationReason::LostPatience => Convergence::StoppedAtLimit,
-            TerminationReason::User(_) => {
-                return Err(FitError::Diverged {
-                    problem: "the levels could not be computed at the parameters the fit \
-                              reached (values not finite)"
-                        .into(),
-                });
+
+        // Iterate.
+        let mut problem = Problem {
+            structure,
+            map: &map,
+            targets: &targets,
+            blocks: targets.iter().map(|t| t.block).collect(),
+            x: x.clone(),
+            reference: RefCell::new(
+                (0..targets.len())
+                    .map(|t| start.state(t).eigenvector.clone())
+                    .collect(),
+            ),
+            current: Some(start),
+            iterations: Cell::new(iterations),
+            evaluations: Cell::new(evaluations),
+            progress: RefCell::new(&mut *progress),
+        };
+        let convergence = if p == 0 {
+            if let Some(evaluation) = problem.current.clone() {
+                problem.accept(&evaluation);
             }
-            other => {
-                return Err(FitError::Diverged {
-                    problem: format!("the minimiser stopped: {other:?}"),
-                });
+            Convergence::NothingToFit
+        } else {
+            let mut lm = LevenbergMarquardt::new();
+            if let Some(limit) = options.max_evaluations() {
+                let left = limit.saturating_sub(evaluations).max(1);
+                lm = lm.with_patience(left.div_ceil(p + 1).max(1));
             }
+            let (solved, report) = lm.minimize(problem);
+            problem = solved;
+            match report.termination {
+                TerminationReason::ResidualsZero
+                | TerminationReason::Orthogonal
+                | TerminationReason::Converged { .. }
+                | TerminationReason::NoImprovementPossible(_) => Convergence::Converged,
+                TerminationReason::LostPatience => Convergence::StoppedAtLimit,
+                TerminationReason::User(_) => {
+                    return Err(FitError::Diverged {
+                        problem: "the levels could not be computed at the parameters the fit \
+                                  reached (values not finite)"
+                            .into(),
+                    });
+                }
+                other => {
+                    return Err(FitError::Diverged {
+                        problem: format!("the minimiser stopped: {other:?}"),
+                    });
+                }
+            }
+        };
+        iterations = problem.iterations.get();
+        evaluations = problem.evaluations.get();
+        x = problem.x.clone();
+        let Some(evaluation) = problem.current.take() else {
+            return Err(FitError::Diverged {
+                problem: "the levels could not be computed at the final parameters".into(),
+            });
+        };
+        drop(problem);
+        if convergence != Convergence::Converged {
+            break (targets, evaluation, convergence, true);
         }
+        // Match the LS-labelled levels afresh at the fitted values; the energy-order
+        // ones keep the states they were tracked to.
+        let keep: Vec<Assignment> = targets
+            .iter()
+            .enumerate()
+            .filter(|(_, t)| t.matched_by == MatchedBy::EnergyOrder)
+            .map(|(i, t)| Assignment {
+                experimental: t.experimental,
+                level: evaluation.chosen[i],
+                matched_by: MatchedBy::EnergyOrder,
+            })
+            .collect();
+        let (again, again_unmatched) =
+            match_levels(structure, &evaluation.levels, &of_species, &keep);
+        let now: Vec<(usize, usize)> = targets
+            .iter()
+            .enumerate()
+            .map(|(i, t)| (t.experimental, evaluation.chosen[i]))
+            .collect();
+        let settled = again.len() == now.len()
+            && again
+                .iter()
+                .zip(&now)
+                .all(|(a, &(e, l))| a.experimental == e && a.level == l);
+        if settled || passes == MAX_PASSES {
+            break (targets, evaluation, convergence, settled);
+        }
+        assignments = again;
+        unmatched = again_unmatched;
+        levels_now = evaluation.levels;
     };
-    let Some(evaluation) = problem.current.clone() else {
-        return Err(FitError::Diverged {
-            problem: "the levels could not be computed at the final parameters".into(),
-        });
-    };
-    let x: Vec<f64> = problem.x.iter().copied().collect();
+    let x: Vec<f64> = x.iter().copied().collect();
+    let weights: Vec<f64> = targets.iter().map(|t| t.weight).collect();
 
     // Statistics.
     let n = targets.len();
     let degrees_of_freedom = n - p;
-    let jacobian = problem.weighted_jacobian(&evaluation);
+    let jacobian = weighted(derivatives(&map, &evaluation), &weights);
     let covariance = if p > 0 {
         Some(inverse_normal_matrix(&jacobian).ok_or_else(|| {
-            let derivatives = problem.derivatives(&evaluation);
             FitError::Undetermined {
-                combinations: null_directions(&derivatives, &weights)
+                combinations: null_directions(&derivatives(&map, &evaluation), &weights)
                     .into_iter()
                     .map(|d| d.into_iter().map(|(j, v)| (names[j].clone(), v)).collect())
                     .collect(),
@@ -491,8 +552,10 @@ pub fn fit_levels(
         sigma_cm1,
         rms_cm1: (sum_squares / n as f64).sqrt(),
         reduced_chi_square,
-        iterations: if p == 0 { 0 } else { problem.iterations.get() },
-        evaluations: problem.evaluations.get(),
+        iterations: if p == 0 { 0 } else { iterations },
+        evaluations,
+        passes,
+        assignment_settled,
         convergence,
     })
 }

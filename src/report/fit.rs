@@ -148,6 +148,13 @@ fn summary(report: &FitReport<'_>) -> String {
             )
         }
     };
+    if !r.assignment_settled {
+        text.push_str(&wrap(
+            "WARNING: matched afresh at the fitted values, the levels still changed states \
+             after the last pass; check the labels of strongly mixed levels.",
+            "",
+        ));
+    }
     match r.sigma_cm1 {
         Some(sigma) => {
             let _ = write!(
@@ -412,6 +419,8 @@ struct Document<'a> {
     levels_source: &'a str,
     weighting: Weighting,
     convergence: Convergence,
+    passes: usize,
+    assignment_settled: bool,
     iterations: usize,
     evaluations: usize,
     free_parameters: usize,
@@ -493,6 +502,8 @@ pub fn fit_json(report: &FitReport<'_>) -> String {
         levels_source: report.levels_source,
         weighting: r.weighting,
         convergence: r.convergence,
+        passes: r.passes,
+        assignment_settled: r.assignment_settled,
         iterations: r.iterations,
         evaluations: r.evaluations,
         free_parameters: r.free_parameters,
