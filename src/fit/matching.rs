@@ -113,16 +113,33 @@ pub fn same_configuration(model: &Configuration, label: &Configuration) -> bool 
             .all(|(orbital, &(_, closed))| a.contains_key(orbital) || closed)
 }
 
-/// The (multiplicity, L) of the LS parent terms written in a configuration label.
-fn ls_parents(configuration: &Configuration) -> Vec<(u32, u32)> {
+/// The (multiplicity, L, repeat index) of the LS parent terms written in a
+/// configuration label.
+fn ls_parents(configuration: &Configuration) -> Vec<(u32, u32, Option<u32>)> {
     configuration
         .parts
         .iter()
         .filter_map(|part| match part {
-            ConfigPart::Intermediate(i) => i.term.as_ls().map(|t| (t.multiplicity, t.l)),
+            ConfigPart::Intermediate(i) => i.term.as_ls().map(|t| (t.multiplicity, t.l, t.index)),
             ConfigPart::Subshell(_) => None,
         })
         .collect()
+}
+
+/// Parent terms agree when either label gives none, or both give the same terms
+/// in the same order (repeat indices compared where both give one).
+fn parents_agree(a: &[(u32, u32, Option<u32>)], b: &[(u32, u32, Option<u32>)]) -> bool {
+    a.is_empty()
+        || b.is_empty()
+        || (a.len() == b.len()
+            && a.iter().zip(b).all(|(x, y)| {
+                x.0 == y.0
+                    && x.1 == y.1
+                    && match (x.2, y.2) {
+                        (Some(i), Some(j)) => i == j,
+                        _ => true,
+                    }
+            }))
 }
 
 /// How well a computed level fits an LS label: percentages of its composition in
@@ -148,9 +165,7 @@ fn ls_score(structure: &LevelStructure, level: &Level, label: &levels::LevelLabe
             continue;
         }
         score[1] += component.percent;
-        let basis_parents = ls_parents(&basis.label.configuration);
-        let parents_agree =
-            parents.is_empty() || basis_parents.is_empty() || parents == basis_parents;
+        let parents_agree = parents_agree(&parents, &ls_parents(&basis.label.configuration));
         let index_agrees = match (term.index, basis.label.term.index) {
             (Some(a), Some(b)) => a == b,
             _ => true,
@@ -572,6 +587,18 @@ mod tests {
             let best = brute_force(&weights, 0, &mut vec![false; columns]);
             proptest::prop_assert!((total - best).abs() < 1e-9, "{} vs {}", total, best);
         }
+    }
+
+    #[test]
+    fn parent_terms_and_their_repeat_index_must_agree() {
+        // d³ has two ²D terms (seniority 1 and 3; Condon & Shortley 1935, §8⁴), told
+        // apart by the index: 3d3.(2D#2).4p is not 3d3.(2D#1).4p.
+        let c = |s: &str| ls_parents(&s.parse::<Configuration>().unwrap());
+        assert!(parents_agree(&c("3d3.(2D#1).4p"), &c("3d3.(2D#1).4p")));
+        assert!(!parents_agree(&c("3d3.(2D#1).4p"), &c("3d3.(2D#2).4p")));
+        assert!(parents_agree(&c("3d3.(2D).4p"), &c("3d3.(2D#2).4p")));
+        assert!(parents_agree(&c("3d3.4p"), &c("3d3.(2D#2).4p")));
+        assert!(!parents_agree(&c("3d3.(4F).4p"), &c("3d3.(2D#2).4p")));
     }
 
     #[test]
