@@ -145,7 +145,13 @@ fn parents_agree(a: &[(u32, u32, Option<u32>)], b: &[(u32, u32, Option<u32>)]) -
 /// How well a computed level fits an LS label: percentages of its composition in
 /// basis states with (configuration, term, parents and repeat index), (configuration
 /// and term), and (configuration) as in the label.
-fn ls_score(structure: &LevelStructure, level: &Level, label: &levels::LevelLabel) -> [f64; 3] {
+/// `agrees[c]` says whether model configuration c is the label's.
+fn ls_score(
+    structure: &LevelStructure,
+    level: &Level,
+    label: &levels::LevelLabel,
+    agrees: &[bool],
+) -> [f64; 3] {
     let Some(term) = label.term.as_ls() else {
         return [0.0; 3];
     };
@@ -154,10 +160,7 @@ fn ls_score(structure: &LevelStructure, level: &Level, label: &levels::LevelLabe
     let mut score = [0.0; 3];
     for component in &level.composition {
         let basis = &block.basis[component.state];
-        if !same_configuration(
-            &structure.configurations()[basis.configuration],
-            &label.configuration,
-        ) {
+        if !agrees[basis.configuration] {
             continue;
         }
         score[2] += component.percent;
@@ -195,14 +198,22 @@ pub(crate) fn match_levels(
         assigned[a.experimental] = Some(*a);
     }
 
+    // Which model configurations each level's configuration is.
+    let agrees: Vec<Vec<bool>> = experimental
+        .iter()
+        .map(|level| {
+            structure
+                .configurations()
+                .iter()
+                .map(|c| same_configuration(c, &level.label.configuration))
+                .collect()
+        })
+        .collect();
     // Candidate states of each experimental level: same parity and J.
     let mut candidates: Vec<Vec<usize>> = Vec::with_capacity(experimental.len());
     for (e, level) in experimental.iter().enumerate() {
         let label = &level.label;
-        let in_model = structure
-            .configurations()
-            .iter()
-            .any(|c| same_configuration(c, &label.configuration));
+        let in_model = agrees[e].contains(&true);
         let list: Vec<usize> = levels
             .iter()
             .enumerate()
@@ -228,7 +239,7 @@ pub(crate) fn match_levels(
         }
         let mut any = false;
         for &i in candidates[e].iter().filter(|&&i| !taken[i]) {
-            let score = ls_score(structure, &levels[i], &level.label);
+            let score = ls_score(structure, &levels[i], &level.label, &agrees[e]);
             if score[1] > 0.0 {
                 // The share with parents and repeat index as in the label counts;
                 // the looser shares decide only between otherwise equal states.
@@ -283,11 +294,7 @@ pub(crate) fn match_levels(
         {
             continue;
         }
-        let Some(configuration) = structure
-            .configurations()
-            .iter()
-            .position(|c| same_configuration(c, &level.label.configuration))
-        else {
+        let Some(configuration) = agrees[e].iter().position(|&a| a) else {
             continue;
         };
         let Some(&first) = candidates[e].first() else {

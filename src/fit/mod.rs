@@ -14,7 +14,9 @@
 //!   file's `vary` and `tie`); a group of tied parameters moves as one.
 //! - [`matching`]: how experimental levels find their computed states (parity and
 //!   J, then LS composition, or energy order for pair-coupled labels) and keep them
-//!   through the iterations (eigenvector overlap, so crossing levels do not swap).
+//!   through the iterations (eigenvector overlap, so crossing levels do not swap);
+//!   after convergence they are matched afresh and the fit repeated while that
+//!   changes an assignment.
 //! - [`checks`]: before iterating, a level set that cannot determine the free
 //!   parameters is refused with the parameters named: a parameter no level depends
 //!   on, more free parameters than levels, or combinations the levels cannot tell
@@ -121,13 +123,7 @@ pub enum FitError {
         example: Option<(String, String)>,
     },
     /// Free parameters that no matched level depends on.
-    #[error(
-        "the fit is ill-posed: no matched level depends on {}; fix {}, or add levels that \
-         depend on {}",
-        parameters.join(", "),
-        if parameters.len() == 1 { "it" } else { "them" },
-        if parameters.len() == 1 { "it" } else { "them" }
-    )]
+    #[error("{}", no_effect(parameters))]
     NoEffect {
         /// Full names of the parameters.
         parameters: Vec<String>,
@@ -156,6 +152,26 @@ pub enum FitError {
         /// What happened.
         problem: String,
     },
+}
+
+fn no_effect(parameters: &[String]) -> String {
+    let (them, are) = if parameters.len() == 1 {
+        ("it", "is")
+    } else {
+        ("them", "are")
+    };
+    let mut text = format!(
+        "the fit is ill-posed: no matched level depends on {}; fix {them}, or add levels \
+         that depend on {them}",
+        parameters.join(", ")
+    );
+    if parameters.iter().any(|p| p.starts_with('R')) {
+        text.push_str(&format!(
+            " (an interaction integral R^k at 0 mixes nothing, so no level depends on it to \
+             first order: start it from a value of the right size if {them} {are} to be fitted)"
+        ));
+    }
+    text
 }
 
 fn too_few_levels(free: usize, levels: usize, crowded: &[CrowdedConfiguration]) -> String {
