@@ -405,7 +405,8 @@ pub fn fit_levels(
                 .iter()
                 .zip(&now)
                 .all(|(a, &(e, l))| a.experimental == e && a.level == l);
-        if settled || passes == MAX_PASSES {
+        if settled || passes == MAX_PASSES || again.len() < p {
+            // Fewer matched levels than free parameters afresh: keep the last fit.
             break (targets, evaluation, convergence, settled);
         }
         assignments = again;
@@ -417,7 +418,7 @@ pub fn fit_levels(
 
     // Statistics.
     let n = targets.len();
-    let degrees_of_freedom = n - p;
+    let degrees_of_freedom = n.saturating_sub(p);
     let jacobian = weighted(derivatives(&map, &evaluation), &weights);
     let covariance = if p > 0 {
         Some(inverse_normal_matrix(&jacobian).ok_or_else(|| {
