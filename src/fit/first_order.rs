@@ -193,6 +193,29 @@ mod tests {
     }
 
     #[test]
+    fn every_tabulated_hydrogenic_integral_for_helium() {
+        // tests/data/check-values/hydrogenic_slater.csv: exact sympy integrals,
+        // coefficient × Z hartree; here Z = 2, through the parameter names.
+        let text = include_str!("../../tests/data/check-values/hydrogenic_slater.csv");
+        let mut checked = 0;
+        for line in text.lines().skip(2) {
+            let f: Vec<&str> = line.split(',').collect();
+            let name = format!("{}{}({},{})", &f[0][..1], f[1], f[2], f[3]);
+            let Ok(radial) = name.parse::<Radial>() else {
+                continue; // F^0 and G^0 of one orbital with itself are not parameter names
+            };
+            let got = hydrogenic_slater_cm1(&radial, 2.0).unwrap().unwrap();
+            let expected = 2.0 * f[5].parse::<f64>().unwrap() * HARTREE_CM1;
+            assert!(
+                (got / expected - 1.0).abs() < 1e-10,
+                "{name}: {got} vs {expected}"
+            );
+            checked += 1;
+        }
+        assert!(checked >= 14, "{checked}");
+    }
+
+    #[test]
     fn only_two_electron_species_get_the_picture() {
         let text = "species = \"Li I\"\n[[configuration]]\nlabel = \"1s2.2s\"\nEav = 0.0\n";
         let loaded = parse_model(text, "li.toml").unwrap();

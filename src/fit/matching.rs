@@ -1,7 +1,7 @@
 //! Which computed eigenstate is which experimental level.
 //!
 //! At the start of a fit each experimental level is matched to one eigenstate of
-//! the model ([`match_levels`]):
+//! the model (`match_levels`):
 //!
 //! 1. by parity and J: only states of the same (parity, J) block are candidates;
 //! 2. for a label in LS coupling, by the label's configuration and term against
@@ -22,7 +22,7 @@
 //! parent terms.
 //!
 //! During the iterations the identity of each matched state is kept by the overlap
-//! of eigenvectors ([`track`]): in each (parity, J) block the state with the largest
+//! of eigenvectors (`track`): in each (parity, J) block the state with the largest
 //! |⟨ψ_previous|ψ_new⟩| takes the level, so two levels that cross as the
 //! parameters move keep their labels (energy order would swap them).
 //!
