@@ -4,6 +4,9 @@
 mod angular_tables;
 mod assign_cli;
 mod assign_reference;
+mod fit_cli;
+mod fit_physics;
+mod fit_roundtrip;
 mod levels_cli;
 mod lines_cli;
 mod optimize_cli;

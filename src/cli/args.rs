@@ -20,6 +20,10 @@ pub enum Command {
     /// with the probability that each match is chance.
     #[command(long_about = super::assign::LONG_ABOUT)]
     Assign(super::assign::AssignArgs),
+    /// Fit the free parameters of a level model to experimental levels
+    /// (Levenberg–Marquardt), with standard errors and correlations.
+    #[command(long_about = super::fit::LONG_ABOUT)]
+    Fit(super::fit::FitArgs),
     /// Compute every level of an ion's level model in intermediate coupling.
     Levels(super::levels::LevelsArgs),
     /// Predict the E1 lines of a level model: wavelengths, line strengths, gf, A

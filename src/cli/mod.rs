@@ -7,6 +7,7 @@
 
 pub mod args;
 pub mod assign;
+pub mod fit;
 pub mod levels;
 pub mod lines;
 pub mod optimize;
@@ -40,6 +41,7 @@ pub fn main() -> ExitCode {
 pub fn run(cli: Cli) -> Result<(), CliError> {
     match cli.command {
         Command::Assign(args) => assign::run(args),
+        Command::Fit(args) => fit::run(args),
         Command::Levels(args) => levels::run(args),
         Command::Lines(args) => lines::run(args),
         Command::Optimize(args) => optimize::run(args),

@@ -11,10 +11,13 @@
 //!
 //! For `termsight lines`, a [`LinesReport`] holds the selected lines of a level
 //! model; [`lines_table`], [`lines_csv`] and [`lines_json`] write it.
+//! For `termsight fit`, a [`FitReport`] wraps a [`crate::fit::FitResult`] with its
+//! sources; [`fit_table`] and [`fit_json`] write it.
 
 mod assign_csv;
 mod assign_json;
 mod assign_table;
+mod fit;
 mod model_lines;
 mod optimize;
 
@@ -28,6 +31,7 @@ use crate::units::{AirFormula, Medium};
 pub use assign_csv::assign_csv;
 pub use assign_json::assign_json;
 pub use assign_table::{TableOptions, assign_table};
+pub use fit::{FitReport, fit_json, fit_table};
 pub use model_lines::{
     DipoleValue, LINE_COLUMNS, LineRow, LineSelection, LinesReport, lines_csv, lines_json,
     lines_table,
