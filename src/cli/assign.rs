@@ -51,7 +51,7 @@ pub struct AssignArgs {
     #[arg(long = "levels", value_name = "FILE")]
     pub levels: Vec<PathBuf>,
 
-    /// Predict lines from the level model in FILE (TOML, with a [dipole] table; see
+    /// Predict lines from the level model in FILE (TOML, with a `[dipole]` table; see
     /// `termsight lines`), with their gf values; repeat for several species. Without
     /// --species or --levels, only the models' lines are matched.
     #[arg(long = "model", value_name = "FILE")]

@@ -19,7 +19,7 @@ use crate::transitions::{DipoleOperator, DipoleProgress, ModelSpectrum, model_sp
 #[derive(Debug, clap::Args)]
 #[command(after_help = AFTER_HELP)]
 pub struct LinesArgs {
-    /// The level model (TOML) with configurations of both parities and a [dipole]
+    /// The level model (TOML) with configurations of both parities and a `[dipole]`
     /// table of radial dipole integrals, such as "P(3s,3p)" = -2.6 (bohr).
     #[arg(value_name = "MODEL")]
     pub model: PathBuf,

@@ -49,7 +49,7 @@ impl LevelLabel {
     /// A checked label. Fails when the term's parity differs from the
     /// configuration's ((−1)^Σl), or when J is not allowed by the term:
     /// |L − S| ≤ J ≤ L + S for an LS term, |K − s| ≤ J ≤ K + s for a pair-coupling
-    /// term 2s+1[K], |j₁ − j₂| ≤ J ≤ j₁ + j₂ for a jj term (angular momentum
+    /// term `2s+1[K]`, |j₁ − j₂| ≤ J ≤ j₁ + j₂ for a jj term (angular momentum
     /// addition; Condon & Shortley 1935, ch. 3).
     pub fn new(configuration: Configuration, term: Term, j: HalfInt) -> Result<Self, LabelError> {
         if term.parity() != configuration.parity() {

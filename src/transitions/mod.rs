@@ -6,7 +6,7 @@
 //!
 //! # Overview
 //!
-//! - [`DipoleOperator::build`] takes a [`LevelStructure`] with configurations of
+//! - [`DipoleOperator::build`] takes a [`LevelStructure`](crate::structure::LevelStructure) with configurations of
 //!   both parities and builds, once, the reduced dipole matrix ⟨γLSJ‖D‖γ'L'S'J'⟩
 //!   between the LS states of every (even J, odd J') pair, as one coefficient matrix
 //!   per radial dipole integral P(a,b) = ⟨a|r|b⟩ ([`DipoleIntegral`]); see
