@@ -80,3 +80,120 @@ fn wrong_electron_count_is_an_error_naming_the_flag() {
     assert!(message.contains("--config '1s2 2s2'"), "{message}");
     assert!(message.contains("Fe II has 25"), "{message}");
 }
+
+/// The NIST ASD 2014 He I level of `configuration`, `term`, `j`, cm⁻¹, from
+/// reference-levels/HeI.csv.
+fn helium_level(configuration: &str, term: &str, j: &str) -> f64 {
+    let table = include_str!("../reference-levels/HeI.csv");
+    table
+        .lines()
+        .filter(|line| !line.starts_with('#'))
+        .map(|line| line.split(',').collect::<Vec<_>>())
+        .find(|f| f[1] == configuration && f[2] == term && f[3] == j)
+        .and_then(|f| f[4].parse().ok())
+        .unwrap_or_else(|| panic!("no He I {configuration} {term} {j}"))
+}
+
+#[test]
+fn starting_model_of_helium_runs_through_levels_and_lines() {
+    let dir = tempfile::tempdir().unwrap();
+    let model = dir.path().join("he.toml");
+    let model = model.to_str().unwrap();
+    let output = termsight(&[
+        "radial",
+        "--element",
+        "He",
+        "--config",
+        "1s2",
+        "--config",
+        "1s 2s",
+        "--config",
+        "1s 2p",
+        "--model-out",
+        model,
+        "--quiet",
+    ]);
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    let text = std::fs::read_to_string(model).unwrap();
+    assert!(text.contains("F^k and G^k 0.85, R^k 0.85, zeta 1, E_av differences 1"));
+
+    let levels = termsight(&["levels", model, "--format", "csv"]);
+    assert!(
+        levels.status.success(),
+        "{}",
+        String::from_utf8_lossy(&levels.stderr)
+    );
+    let levels = String::from_utf8(levels.stdout).unwrap();
+    let rows: Vec<Vec<&str>> = levels
+        .lines()
+        .skip(1)
+        .map(|l| l.split(',').collect())
+        .collect();
+    // 1s²: 1 level, 1s2s: 2, 1s2p: 4 (common practice, no source).
+    assert_eq!(rows.len(), 7, "{levels}");
+    let energy = |term: &str, j: &str| -> f64 {
+        rows.iter()
+            .find(|r| r[4] == term && r[1] == j)
+            .unwrap_or_else(|| panic!("no {term} J={j} in {levels}"))[0]
+            .parse()
+            .unwrap()
+    };
+    // Against the published He I levels (NIST ASD 2014, reference-levels/HeI.csv).
+    // The singlet–triplet splitting of 1s2p, 2048.1 cm⁻¹ observed, comes out at
+    // 1955 cm⁻¹ (ratio 0.95) with the customary 0.85 scaling of G¹: within the
+    // 20 % the scaling is expected to reach (common practice, no source).
+    let splitting = energy("1s.2p 1P°", "1") - energy("1s.2p 3P°", "1");
+    let observed = helium_level("1s.2p", "1P°", "1") - helium_level("1s.2p", "3P°", "1");
+    let ratio = splitting / observed;
+    assert!((0.8..1.2).contains(&ratio), "1s2p ¹P–³P ratio {ratio}");
+    // Excitation energies come out 5 % low (151211 against 159856 cm⁻¹ for
+    // 1s2s ³S): Hartree–Fock lacks the correlation energy of 1s², about 0.042
+    // hartree = 9200 cm⁻¹ (Clementi & Roetti 1974 against the exact −2.9037
+    // hartree, values from memory).
+    let ratio = energy("1s.2s 3S", "1") / helium_level("1s.2s", "3S", "1");
+    assert!((0.93..0.97).contains(&ratio), "1s2s ³S ratio {ratio}");
+
+    let lines = termsight(&["lines", model, "--format", "csv"]);
+    assert!(
+        lines.status.success(),
+        "{}",
+        String::from_utf8_lossy(&lines.stderr)
+    );
+    let lines = String::from_utf8(lines.stdout).unwrap();
+    let mut rows = lines.lines().filter(|l| !l.starts_with('#'));
+    let header: Vec<&str> = rows.next().unwrap().split(',').collect();
+    let column = |name: &str| header.iter().position(|h| *h == name).unwrap();
+    let resonance = rows
+        .map(|l| l.split(',').collect::<Vec<_>>())
+        .find(|f| f[column("upper_configuration")] == "1s.2p" && f[column("upper_term")] == "1P°")
+        .unwrap_or_else(|| panic!("no 1s2p ¹P line in {lines}"));
+    // The resonance line 58.4 nm: f = 0.2762 (Drake's variational value, from
+    // memory); the single-configuration orbitals give 0.32, 17 % high, as
+    // Hartree–Fock length-form f-values of He are.
+    let gf: f64 = resonance[column("gf")].parse().unwrap();
+    assert!((gf / 0.2762 - 1.17).abs() < 0.05, "gf {gf}");
+}
+
+#[test]
+fn model_out_into_a_missing_directory_fails_before_the_calculation() {
+    let output = termsight(&[
+        "radial",
+        "--element",
+        "He",
+        "--config",
+        "1s2",
+        "--model-out",
+        "/nonexistent-dir/he.toml",
+    ]);
+    assert_eq!(output.status.code(), Some(2));
+    let message = String::from_utf8(output.stderr).unwrap();
+    assert!(
+        message.contains("--model-out /nonexistent-dir/he.toml"),
+        "{message}"
+    );
+    assert!(output.stdout.is_empty());
+}

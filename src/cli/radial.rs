@@ -10,6 +10,7 @@
 //! configurations R^k and ⟨a|r|b⟩), raw and scaled.
 
 use std::io::{self, IsTerminal, Write};
+use std::path::PathBuf;
 use std::time::{Duration, Instant};
 
 use clap::ValueEnum;
@@ -20,11 +21,13 @@ use crate::notation::{Configuration, Species, element};
 use crate::radial::integrals::mean_radius_bohr;
 use crate::radial::{
     GridSpec, IntegralKind, RadialIntegral, ScaleFactors, ScfObserver, ScfOptions, ScfProgress,
-    ScfSolution, ScfStage, hartree_fock, local_exchange, radial_integrals, screened_hydrogenic,
+    ScfSolution, ScfStage, hartree_fock, local_exchange, model_file, radial_integrals,
+    screened_hydrogenic, starting_model,
 };
 use crate::units::constants::HARTREE_CM1;
 
 use super::CliError;
+use super::output::write_atomically;
 
 /// Arguments of `termsight radial`.
 #[derive(Debug, Clone, clap::Args)]
@@ -69,6 +72,11 @@ pub struct RadialArgs {
     /// Output format.
     #[arg(long, value_enum, default_value_t = Format::Table)]
     pub format: Format,
+    /// Also write a starting level model of the configurations to this TOML file
+    /// (scaled values, every parameter free), for `termsight levels`, `lines` and
+    /// `fit`.
+    #[arg(long, value_name = "FILE")]
+    pub model_out: Option<PathBuf>,
     /// Print no progress lines on stderr.
     #[arg(long)]
     pub quiet: bool,
@@ -97,6 +105,9 @@ pub enum Format {
 /// Run `termsight radial`.
 pub fn run(args: RadialArgs) -> Result<(), CliError> {
     let request = Request::from_args(&args)?;
+    if let Some(path) = &args.model_out {
+        check_directory_exists(path)?;
+    }
     let mut progress = Progress::new(args.quiet);
     let report = compute(&request, &mut progress)?;
     let text = match args.format {
@@ -110,7 +121,46 @@ pub fn run(args: RadialArgs) -> Result<(), CliError> {
         .map_err(|source| CliError::Io {
             path: "<stdout>".into(),
             source,
-        })
+        })?;
+    // The model is written after the report, so that a model that cannot be made
+    // or written loses none of the computed numbers.
+    if let Some(path) = &args.model_out {
+        let text = model_text(&request, &report)?;
+        write_atomically(path, text.as_bytes())?;
+        if !args.quiet {
+            eprintln!(
+                "termsight radial: starting level model written to {}",
+                path.display()
+            );
+        }
+    }
+    Ok(())
+}
+
+/// Fail before the calculation when the model file's directory is missing.
+fn check_directory_exists(path: &std::path::Path) -> Result<(), CliError> {
+    match path.parent() {
+        Some(dir) if !dir.as_os_str().is_empty() && !dir.is_dir() => {
+            Err(CliError::Message(format!(
+                "--model-out {}: no directory {}",
+                path.display(),
+                dir.display()
+            )))
+        }
+        _ => Ok(()),
+    }
+}
+
+/// The text of the starting level model of the report's configurations.
+pub fn model_text(request: &Request, report: &RadialReport) -> Result<String, CliError> {
+    let model = starting_model(request.species, &request.configurations, &report.integrals)
+        .map_err(|e| CliError::Message(format!("--model-out: {e}")))?;
+    Ok(model_file(
+        &model,
+        &report.method,
+        &request.scales,
+        &report.integrals,
+    ))
 }
 
 /// What the user asked for, checked.

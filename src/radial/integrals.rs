@@ -461,7 +461,7 @@ fn orbital_p(solution: &ScfSolution, s: &Subshell, length: usize) -> Vec<f64> {
 /// The electrons that leave (from `left`) and arrive (in `right`) when the two
 /// configurations differ by one or two electrons, as subshells with occupancy 1
 /// listed once per electron; `None` when they differ by more (or not at all).
-fn replacement(
+pub(crate) fn replacement(
     left: &Configuration,
     right: &Configuration,
 ) -> Option<(Vec<Subshell>, Vec<Subshell>)> {

@@ -24,6 +24,8 @@
 //!   the field methods.
 //! - [`integrals`]: the named, scaled integrals of one or more configurations
 //!   ([`radial_integrals`]).
+//! - [`level_model`]: a starting level model from the scaled integrals
+//!   ([`starting_model`]), as a model file ([`model_file`]).
 //!
 //! Nothing here reads files or prints; long calculations report each iteration to
 //! an [`ScfObserver`].
@@ -45,6 +47,7 @@ pub mod grid;
 pub mod hartree_fock;
 pub mod hydrogenic;
 pub mod integrals;
+pub mod level_model;
 pub mod local_exchange;
 pub mod numerov;
 mod operator;
@@ -55,6 +58,7 @@ mod three_j;
 pub use grid::{GridSpec, RadialGrid};
 pub use hartree_fock::hartree_fock;
 pub use integrals::{IntegralKind, RadialIntegral, ScaleFactors, radial_integrals};
+pub use level_model::{model_file, starting_model};
 pub use local_exchange::local_exchange;
 pub use scf::{
     Method, Orbital, ScfObserver, ScfOptions, ScfProgress, ScfSolution, ScfStage, Silent,
@@ -114,6 +118,12 @@ pub enum RadialError {
         iterations: u32,
         /// The last residual.
         residual: f64,
+    },
+    /// The integrals cannot be made into a level model.
+    #[error("level model: {problem}")]
+    LevelModel {
+        /// What is wrong.
+        problem: String,
     },
     /// An orbital came out unbound (ε ≥ 0).
     #[error("orbital {orbital} is not bound (ε = {energy_hartree:.6} hartree)")]
