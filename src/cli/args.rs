@@ -33,7 +33,7 @@ pub enum Command {
     /// with Ritz wavenumbers and wavelengths.
     Optimize(super::optimize::OptimizeArgs),
     /// Orbitals and radial integrals (E_av, F^k, G^k, R^k, ζ, ⟨r⟩) of configurations,
-    /// from a self-consistent field.
+    /// from a self-consistent field; optionally a starting level model of them.
     Radial(super::radial::RadialArgs),
 }
 

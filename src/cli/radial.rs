@@ -48,16 +48,16 @@ pub struct RadialArgs {
     #[arg(long, value_enum, default_value_t = MethodChoice::HartreeFock)]
     pub method: MethodChoice,
     /// Scale factor for F^k and G^k (customary for neutral atoms: 0.8–0.9).
-    #[arg(long, default_value_t = 0.85)]
+    #[arg(long, default_value_t = 0.85, value_name = "FACTOR")]
     pub scale_slater: f64,
     /// Scale factor for R^k between configurations.
-    #[arg(long, default_value_t = 0.85)]
+    #[arg(long, default_value_t = 0.85, value_name = "FACTOR")]
     pub scale_interaction: f64,
     /// Scale factor for the spin–orbit parameters ζ.
-    #[arg(long, default_value_t = 1.0)]
+    #[arg(long, default_value_t = 1.0, value_name = "FACTOR")]
     pub scale_zeta: f64,
     /// Scale factor for E_av differences.
-    #[arg(long, default_value_t = 1.0)]
+    #[arg(long, default_value_t = 1.0, value_name = "FACTOR")]
     pub scale_eav: f64,
     /// Grid step h in ln(Z r) [default: 1/96].
     #[arg(long, value_name = "H")]
@@ -67,7 +67,7 @@ pub struct RadialArgs {
     #[arg(long, value_name = "BOHR")]
     pub r_max: Option<f64>,
     /// Most self-consistent-field iterations per configuration.
-    #[arg(long, default_value_t = 200)]
+    #[arg(long, default_value_t = 200, value_name = "N")]
     pub max_iterations: u32,
     /// Output format.
     #[arg(long, value_enum, default_value_t = Format::Table)]

@@ -1,27 +1,13 @@
 //! The 3j symbol (l₁ l₂ l₃; 0 0 0) for integer l, squared — all the angular
-//! algebra the configuration-average energy needs.
-//!
-//! A small private helper until the project's `angular` module (3j and 6j symbols
-//! in general) is in place; then this file should give way to it.
+//! algebra the configuration-average energy and the integral orders need — from
+//! the project's [`crate::angular`] module.
 
-/// (l₁ l₂ l₃; 0 0 0)², zero unless l₁ + l₂ + l₃ is even and the triangle rule holds.
-///
-/// With J = l₁ + l₂ + l₃ = 2g (Edmonds 1957, eq. 3.7.17):
-///
-/// ```text
-/// (l₁ l₂ l₃; 0 0 0) = (−1)^g √[(J−2l₁)!(J−2l₂)!(J−2l₃)!/(J+1)!] · g!/[(g−l₁)!(g−l₂)!(g−l₃)!]
-/// ```
+use crate::angular::three_j;
+
+/// (l₁ l₂ l₃; 0 0 0)², zero unless l₁ + l₂ + l₃ is even and the triangle rule holds
+/// (Edmonds 1957, eq. 3.7.17).
 pub(crate) fn three_j_zero_squared(l1: u32, l2: u32, l3: u32) -> f64 {
-    let j = l1 + l2 + l3;
-    if j % 2 == 1 || l3 > l1 + l2 || l1 > l2 + l3 || l2 > l1 + l3 {
-        return 0.0;
-    }
-    let g = j / 2;
-    let factorial = |n: u32| (1..=n).map(f64::from).product::<f64>();
-    let radicand =
-        factorial(j - 2 * l1) * factorial(j - 2 * l2) * factorial(j - 2 * l3) / factorial(j + 1);
-    let ratio = factorial(g) / (factorial(g - l1) * factorial(g - l2) * factorial(g - l3));
-    radicand * ratio * ratio
+    three_j([2 * l1, 2 * l2, 2 * l3], [0, 0, 0]).map_or(0.0, |value| value * value)
 }
 
 #[cfg(test)]
@@ -50,7 +36,7 @@ mod tests {
                 None => fields[9].parse::<f64>().unwrap(),
             };
             let got = three_j_zero_squared(l1, l2, l3);
-            // Our factorial products round at about 1e-15.
+            // Exact values rounded once to f64.
             assert!(
                 (got - expected).abs() <= 1e-14 * expected,
                 "({l1} {l2} {l3}; 0 0 0)² = {got}, sympy {expected}"
