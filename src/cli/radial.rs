@@ -497,12 +497,21 @@ pub fn render_table(report: &RadialReport) -> String {
         } else {
             3
         };
+        // Values too small for the fixed decimals (ζ of a Rydberg g orbital) in
+        // exponent form, so that they do not read as zero.
+        let number = |value: f64| {
+            if value != 0.0 && value.abs() < 0.1 {
+                format!("{value:.3e}")
+            } else {
+                format!("{value:.digits$}")
+            }
+        };
         table.add_row(vec![
             Cell::new(&i.name),
             Cell::new(configurations),
-            right(format!("{:.digits$}", i.value)),
+            right(number(i.value)),
             right(format!("{}", i.scale)),
-            right(format!("{:.digits$}", i.scaled)),
+            right(number(i.scaled)),
         ]);
     }
     out.push_str(&table.to_string());
