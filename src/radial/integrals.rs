@@ -859,4 +859,43 @@ mod tests {
             );
         }
     }
+    #[test]
+    fn sodium_three_p_is_the_hartree_fock_orbital_and_falls_short_in_hyperfine_too() {
+        // The ζ shortfall of Na 3p (observed/computed 1.35, above) is not the
+        // orbital's fault. Its energy is Hartree–Fock's, ε(3p) = −0.1095 hartree
+        // (Froese Fischer 1977, tables; from memory). Its ⟨r⁻³⟩ gives the hyperfine
+        // constant A(3p½) = 2(μ0/4π) μ_B μ_N g_I ⟨r⁻³⟩ l(l+1)/(j(j+1)) (Arimondo,
+        // Inguscio & Violino 1977, Rev. Mod. Phys. 49, 31) of the Dirac–Fock
+        // orbital, 62.6 MHz, against 94.44 MHz observed (Safronova, Johnson &
+        // Derevianko 1999, Phys. Rev. A 60, 4476; both from memory): the same third
+        // missing, from core polarisation. g_I = 2.2175/1.5 for ²³Na, m_p/m_e =
+        // 1836.153 (from memory).
+        use crate::radial::{ScfOptions, Silent, hartree_fock};
+        use crate::units::constants::{
+            BOHR_RADIUS_CM, ELECTRON_MASS_KG, ELEMENTARY_CHARGE_C, PLANCK_CONSTANT_J_S,
+        };
+        let na = hartree_fock(
+            11,
+            &"1s2 2s2 2p6 3p".parse().unwrap(),
+            &ScfOptions::default(),
+            &mut Silent,
+        )
+        .unwrap();
+        let p3 = na.orbital(3, 1).unwrap();
+        assert!(
+            (p3.energy_hartree + 0.1095).abs() < 3e-4,
+            "{}",
+            p3.energy_hartree
+        );
+        let r3 = na.grid.integrate_product_power(&p3.p, &p3.p, -3);
+        let bohr_magneton = ELEMENTARY_CHARGE_C * PLANCK_CONSTANT_J_S
+            / (4.0 * std::f64::consts::PI * ELECTRON_MASS_KG);
+        let nuclear_magneton = bohr_magneton / 1836.153;
+        let a0 = BOHR_RADIUS_CM * 1e-2;
+        let unit_mhz =
+            1e-7 * bohr_magneton * nuclear_magneton / (PLANCK_CONSTANT_J_S * a0.powi(3)) / 1e6;
+        let a_half = 2.0 * unit_mhz * (2.2175 / 1.5) * r3 * 2.0 / 0.75;
+        assert!((a_half / 62.6 - 1.0).abs() < 0.05, "A(3p½) = {a_half} MHz");
+        assert!(94.44 / a_half > 1.3);
+    }
 }
