@@ -53,7 +53,7 @@ fn check(line: usize, got: &SignedSqrt, sign: &str, square: &str, float: &str) {
 
 #[test]
 fn wigner_3j_matches_every_sympy_row() {
-    let table = include_str!("data/wigner3j.csv");
+    let table = include_str!("data/check-values/wigner3j.csv");
     let mut checked = 0;
     let mut rejected = 0;
     for (line, f) in rows(table) {

@@ -1,7 +1,7 @@
 //! The level model against the sympy check tables in tests/data (copied from
 //! shared/check-values; gen_check_values.py with sympy 1.14.0, its own exact
 //! Slater-determinant code after Condon & Shortley 1935 and Slater 1960):
-//! term_energies.csv, spin_orbit.csv and intermediate_coupling.csv.
+//! check-values/term_energies.csv, spin_orbit.csv and intermediate_coupling.csv.
 
 use std::collections::BTreeMap;
 
@@ -141,7 +141,7 @@ fn twice(text: &str) -> u32 {
 
 #[test]
 fn pure_ls_coefficients_match_term_energies() {
-    let table = include_str!("data/term_energies.csv");
+    let table = include_str!("data/check-values/term_energies.csv");
     let all = rows(table);
     let columns = [
         "F^2", "F^4", "F^6", "G^0", "G^1", "G^2", "G^3", "G^4", "G^5", "G^6",
@@ -241,7 +241,7 @@ fn pure_ls_coefficients_match_term_energies() {
 fn pure_ls_energies_match_term_energies_for_random_parameters() {
     // ζ = 0, one configuration: the levels of each J are the term energies (the
     // eigenvalues of the d³ ²D block), to 1e-10 relative.
-    let table = include_str!("data/term_energies.csv");
+    let table = include_str!("data/check-values/term_energies.csv");
     let all = rows(table);
     let mut configs: Vec<String> = all.iter().map(|(_, r)| r["config"].clone()).collect();
     configs.dedup();
