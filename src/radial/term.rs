@@ -12,12 +12,17 @@
 //! ```
 //!
 //! [`s_l_term_expression`] builds that expression; Hartree–Fock for it is
-//! [`super::hartree_fock::hartree_fock_term`].
+//! [`super::hartree_fock::hartree_fock_term`]. For the delicate ¹S of two s
+//! electrons, [`two_s_electron_singlet_energies`] gives an upper bound to the
+//! excited ¹S level from the same pair of orbitals.
 
 use crate::notation::Subshell;
 
 use super::RadialError;
 use super::average::{EnergyExpression, SlaterKind};
+use super::energy::kinetic_energy;
+use super::grid::RadialGrid;
+use super::slater::yk_function;
 
 /// The total spin of the open s·l pair.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -110,6 +115,62 @@ pub fn s_l_term_expression(
     Ok(expression)
 }
 
+/// The ¹S energies of two electrons in two orthonormal s orbitals `pa`, `pb`
+/// (on `grid`, nuclear charge `z`, no other electrons), hartree, lowest first:
+/// the eigenvalues of the Hamiltonian in the three ¹S functions a², (ab)¹S, b².
+///
+/// The three functions span the same space for any rotation of a and b, so the
+/// result does not depend on how the pair is mixed; by the Hylleraas–Undheim–
+/// MacDonald theorem (Phys. Rev. 43, 1933) the second eigenvalue lies above the
+/// exact energy of the second ¹S state (He 1s2s ¹S) — the bound that a single
+/// 1s2s ¹S function lacks. The matrix (Condon & Shortley 1935, §6.8; Slater
+/// 1960, ch. 13), with h_xy = ⟨x| −½d²/dr² − Z/r |y⟩ and the Slater integrals
+/// R⁰(xy, uv) = ∫∫ x(1)u(2) y(1)v(2)/r_> dr₁dr₂:
+///
+/// ```text
+/// H(a², a²)   = 2h_aa + F⁰(a,a)          H(b², b²) = 2h_bb + F⁰(b,b)
+/// H(ab, ab)   = h_aa + h_bb + F⁰(a,b) + G⁰(a,b)
+/// H(a², b²)   = G⁰(a,b)
+/// H(a², ab)   = √2 [h_ab + R⁰(aa, ab)]   H(ab, b²) = √2 [h_ab + R⁰(ab, bb)]
+/// ```
+pub fn two_s_electron_singlet_energies(
+    grid: &RadialGrid,
+    z: f64,
+    pa: &[f64],
+    pb: &[f64],
+) -> [f64; 3] {
+    let h = grid.step();
+    let one = |x: &[f64], y: &[f64]| {
+        let sum: Vec<f64> = x.iter().zip(y).map(|(x, y)| x + y).collect();
+        let difference: Vec<f64> = x.iter().zip(y).map(|(x, y)| x - y).collect();
+        let kinetic =
+            (kinetic_energy(grid, 0, z, &sum) - kinetic_energy(grid, 0, z, &difference)) / 4.0;
+        kinetic - z * grid.integrate_product_power(x, y, -1)
+    };
+    // R⁰(xy, uv) = ∫ x y Y⁰(uv)/r dr.
+    let r0 = |x: &[f64], y: &[f64], u: &[f64], v: &[f64]| {
+        let y0 = yk_function(grid, 0, u, v);
+        h * x
+            .iter()
+            .zip(y)
+            .zip(&y0)
+            .map(|((x, y), w)| x * y * w)
+            .sum::<f64>()
+    };
+    let (haa, hbb, hab) = (one(pa, pa), one(pb, pb), one(pa, pb));
+    let g0 = r0(pa, pb, pa, pb);
+    let root2 = std::f64::consts::SQRT_2;
+    let m11 = 2.0 * haa + r0(pa, pa, pa, pa);
+    let m33 = 2.0 * hbb + r0(pb, pb, pb, pb);
+    let m22 = haa + hbb + r0(pa, pa, pb, pb) + g0;
+    let m12 = root2 * (hab + r0(pa, pa, pa, pb));
+    let m23 = root2 * (hab + r0(pa, pb, pb, pb));
+    let matrix = nalgebra::Matrix3::new(m11, m12, g0, m12, m22, m23, g0, m23, m33);
+    let mut values: Vec<f64> = matrix.symmetric_eigenvalues().iter().copied().collect();
+    values.sort_by(f64::total_cmp);
+    [values[0], values[1], values[2]]
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -198,6 +259,35 @@ mod tests {
         assert_eq!((a.kind, a.k, a.a, a.b), (SlaterKind::Exchange, 1, 3, 4));
         assert!((a.coefficient + 1.0 / 6.0).abs() < 1e-15);
         assert!((t.coefficient + 1.0 / 3.0).abs() < 1e-15);
+    }
+
+    #[test]
+    fn singlet_energies_of_hydrogenic_orbitals_match_sympy() {
+        // Hydrogenic 1s, 2s of Z = 2 (h_12 = 0, h_nn = −Z²/2n²). Matrix elements
+        // exact with sympy 1.14 (∫∫ of r·R_nl from sympy.physics.hydrogen):
+        // F⁰(1s,1s) = 5Z/8, F⁰(1s,2s) = 17Z/81, G⁰(1s,2s) = 16Z/729,
+        // F⁰(2s,2s) = 77Z/512, R⁰(1s1s,1s2s) = 4096√2 Z/64827,
+        // R⁰(1s2s,2s2s) = 512√2 Z/84375; the eigenvalues of the resulting 3×3
+        // matrix (sympy, 15 digits): −2.83099545725110, −1.95696810761653,
+        // −0.697606351113166 hartree.
+        let grid = RadialGrid::new(2.0, super::super::GridSpec::default()).unwrap();
+        let p1 = super::super::hydrogenic::hydrogenic_orbital(&grid, 1, 0, 2.0).unwrap();
+        let p2 = super::super::hydrogenic::hydrogenic_orbital(&grid, 2, 0, 2.0).unwrap();
+        let got = two_s_electron_singlet_energies(&grid, 2.0, &p1, &p2);
+        for (got, expected) in
+            got.iter()
+                .zip([-2.83099545725110, -1.95696810761653, -0.697606351113166])
+        {
+            assert!((got - expected).abs() < 1e-8, "{got} vs {expected}");
+        }
+        // The mixing of the pair does not matter (rotation by 0.3 rad).
+        let (c, s) = (0.3f64.cos(), 0.3f64.sin());
+        let q1: Vec<f64> = p1.iter().zip(&p2).map(|(a, b)| c * a + s * b).collect();
+        let q2: Vec<f64> = p1.iter().zip(&p2).map(|(a, b)| -s * a + c * b).collect();
+        let rotated = two_s_electron_singlet_energies(&grid, 2.0, &q1, &q2);
+        for (a, b) in rotated.iter().zip(&got) {
+            assert!((a - b).abs() < 1e-9, "{a} vs {b}");
+        }
     }
 
     #[test]
