@@ -21,7 +21,7 @@
 //! - [`mod@local_exchange`]: the Hartree–Fock–Slater field (Slater exchange, Latter
 //!   tail), which also starts the Hartree–Fock iterations.
 //! - [`mod@hartree_fock`]: Hartree–Fock for the average energy of a configuration
-//!   ([`hartree_fock`]) or for one term of an s·l configuration
+//!   ([`hartree_fock()`]) or for one term of an s·l configuration
 //!   ([`hartree_fock_term`]).
 //! - [`scf`]: settings, progress reports ([`ScfObserver`]) and solutions shared by
 //!   the field methods.
