@@ -1085,7 +1085,8 @@ mod tests {
         // (ratio 1.12). Scaled by the customary 0.85 the 1s2p value lands within
         // 5 % (0.95) and the 1s2s value at 0.66: the single-configuration 2¹S level
         // lacks its interaction with 1s² and 1s ns ¹S, which pushes it up (our
-        // reading, not checked here).
+        // reading, not checked here). Term-dependent orbitals:
+        // `helium_singlet_triplet_splittings_from_term_calculations`.
         assert!((ratio_s - 0.78).abs() < 0.02, "1s2s: ratio {ratio_s}");
         assert!((ratio_p - 1.12).abs() < 0.02, "1s2p: ratio {ratio_p}");
         assert!(
