@@ -10,7 +10,7 @@
 //! ```
 //!
 //! with q_a the occupancy of subshell a and I(a) = ⟨a| −½d²/dr² + l(l+1)/(2r²) − Z/r |a⟩
-//! its one-electron energy. [`AverageEnergyExpression`] holds the two-electron part
+//! its one-electron energy. [`EnergyExpression::new`] holds the two-electron part
 //! as a list of [`SlaterTerm`]s; the Hartree–Fock equations are derived from the
 //! same list, so energy and equations always agree.
 
@@ -43,10 +43,15 @@ pub struct SlaterTerm {
     pub coefficient: f64,
 }
 
-/// E_av of a configuration: occupancies for the one-electron part and the
-/// two-electron terms.
+/// An energy expression Σ_a q_a I(a) + Σ c F^k + Σ c G^k: the occupancies give the
+/// one-electron part, the [`SlaterTerm`]s the two-electron part (hartree when the
+/// integrals are in hartree).
+///
+/// [`EnergyExpression::new`] builds E_av of a configuration (the default
+/// everywhere); [`super::term::s_l_term_expression`] builds the energy of one
+/// term of a configuration with an s and an l electron outside closed shells.
 #[derive(Debug, Clone, PartialEq)]
-pub struct AverageEnergyExpression {
+pub struct EnergyExpression {
     /// The subshells, in the order the terms index them.
     pub subshells: Vec<Subshell>,
     /// The two-electron terms.
@@ -75,9 +80,13 @@ pub fn direct_orders(l: u32) -> impl Iterator<Item = u32> {
     (2..=2 * l).step_by(2)
 }
 
-impl AverageEnergyExpression {
-    /// The expression for a configuration's subshells (each written once).
-    pub fn new(subshells: &[Subshell]) -> AverageEnergyExpression {
+/// The former name of [`EnergyExpression`], whose [`EnergyExpression::new`]
+/// builds E_av.
+pub type AverageEnergyExpression = EnergyExpression;
+
+impl EnergyExpression {
+    /// E_av for a configuration's subshells (each written once).
+    pub fn new(subshells: &[Subshell]) -> EnergyExpression {
         let mut terms = Vec::new();
         for (a, shell) in subshells.iter().enumerate() {
             let q = shell.occupancy as f64;
@@ -120,7 +129,7 @@ impl AverageEnergyExpression {
                 }
             }
         }
-        AverageEnergyExpression {
+        EnergyExpression {
             subshells: subshells.to_vec(),
             terms,
         }

@@ -44,10 +44,10 @@
 //! [`mod@super::local_exchange`], and stop when no orbital changes by more than
 //! [`ScfOptions::orbital_tolerance`] and the energy is steady.
 
-use crate::notation::Configuration;
+use crate::notation::{Configuration, Subshell};
 
 use super::RadialError;
-use super::average::{AverageEnergyExpression, SlaterKind};
+use super::average::{EnergyExpression, SlaterKind};
 use super::energy::{EnergyParts, average_energy, kinetic_energy};
 use super::grid::RadialGrid;
 use super::local_exchange;
@@ -58,6 +58,7 @@ use super::scf::{
     checked_subshells, screened_hydrogenic,
 };
 use super::slater::{r_density, yk_function, yk_of_density};
+use super::term::{PairSpin, s_l_term_expression};
 
 /// The Hartree–Fock solution of a configuration (Z = `nuclear_charge`).
 ///
@@ -74,8 +75,89 @@ pub fn hartree_fock(
     options: &ScfOptions,
     observer: &mut dyn ScfObserver,
 ) -> Result<ScfSolution, RadialError> {
+    solve(
+        nuclear_charge,
+        configuration,
+        |subshells| Ok(EnergyExpression::new(subshells)),
+        options,
+        observer,
+    )
+}
+
+/// A Hartree–Fock solution for one term of an s·l configuration.
+#[derive(Debug, Clone)]
+pub struct TermSolution {
+    /// The term's spin (¹L or ³L).
+    pub spin: PairSpin,
+    /// The orbitals; `solution.energy` is the energy of the term (hartree), not
+    /// E_av, so the solution must not be mixed with configuration-average ones in
+    /// [`super::radial_integrals`].
+    pub solution: ScfSolution,
+}
+
+/// Term-dependent Hartree–Fock: the orbitals for the energy of the term
+/// ^{2S+1}L of closed shells + s + l (Z = `nuclear_charge`; expression of
+/// [`super::term`]: E_av with G^l(s,l) weighted ±1/(2l+1) instead of
+/// −1/(2(2l+1))).
+///
+/// The equations and their solution are those of [`hartree_fock`], with the
+/// exchange term of the open pair changed accordingly; the start is the same
+/// local-exchange field.
+///
+/// For s·s' (He 1s2s) both orbitals of the pair are open and of one l, and their
+/// mixing is fixed as for E_av: the inner orbital is made an eigenfunction of its
+/// own Hartree–Fock operator within the pair (`align_inner` in the source), so
+/// that it carries no off-diagonal multiplier and the outer orbital carries the
+/// orthogonality. Making the energy stationary in the mixing angle instead lets
+/// the ¹S pair slide towards 1s² (for He it ends at −2.16985 hartree, below the
+/// ³S-like region, with G⁰(1s,2s) ≈ 430 cm⁻¹). For ³S the energy does not depend
+/// on the angle (a determinant is unchanged by mixing its orbitals).
+///
+/// Caveat for ¹S: a single configuration of orthogonal orbitals is not kept
+/// orthogonal to the ground state, and the ¹S energy found this way still lies
+/// below the exact 2¹S energy of He (see the tests): part of the collapse
+/// remains, and the virial ratio departs from 2 (2.036 for He), since the energy
+/// is not stationary in the mixing angle. For a two-electron atom,
+/// [`super::term::two_s_electron_singlet_energies`] turns the ¹S orbitals into
+/// an upper bound to the 2¹S energy; the two bracket the exact value for He.
+///
+/// ```
+/// use termsight::radial::{hartree_fock_term, PairSpin, ScfOptions, Silent};
+/// let config = "1s 2p".parse().unwrap();
+/// let options = ScfOptions::default();
+/// let triplet = hartree_fock_term(2, &config, PairSpin::Triplet, &options, &mut Silent).unwrap();
+/// let singlet = hartree_fock_term(2, &config, PairSpin::Singlet, &options, &mut Silent).unwrap();
+/// assert!(triplet.solution.energy.total_hartree < singlet.solution.energy.total_hartree);
+/// ```
+pub fn hartree_fock_term(
+    nuclear_charge: u32,
+    configuration: &Configuration,
+    spin: PairSpin,
+    options: &ScfOptions,
+    observer: &mut dyn ScfObserver,
+) -> Result<TermSolution, RadialError> {
+    let solution = solve(
+        nuclear_charge,
+        configuration,
+        |subshells| s_l_term_expression(subshells, spin),
+        options,
+        observer,
+    )?;
+    Ok(TermSolution { spin, solution })
+}
+
+/// Hartree–Fock for the energy expression that `expression` builds from the
+/// configuration's subshells.
+fn solve(
+    nuclear_charge: u32,
+    configuration: &Configuration,
+    expression: impl FnOnce(&[Subshell]) -> Result<EnergyExpression, RadialError>,
+    options: &ScfOptions,
+    observer: &mut dyn ScfObserver,
+) -> Result<ScfSolution, RadialError> {
     options.validate()?;
     let subshells = checked_subshells(nuclear_charge, configuration)?;
+    let expression = expression(&subshells)?;
     let start = screened_hydrogenic(nuclear_charge, configuration, options.grid)?;
     let z = nuclear_charge as f64;
     let (orbitals, _, _) = local_exchange::iterate(
@@ -88,12 +170,7 @@ pub fn hartree_fock(
         false,
         observer,
     )?;
-    let mut solver = Solver::new(
-        &start.grid,
-        z,
-        AverageEnergyExpression::new(&subshells),
-        orbitals,
-    );
+    let mut solver = Solver::new(&start.grid, z, expression, orbitals);
     let (iterations, residual) = solver.run(options, observer)?;
     let energy = solver.energy();
     let orbitals = solver.orbitals();
@@ -141,7 +218,7 @@ struct ExchangeTerm {
 struct Solver<'g> {
     grid: &'g RadialGrid,
     z: f64,
-    expression: AverageEnergyExpression,
+    expression: EnergyExpression,
     kinetic: Vec<NumerovKinetic>,
     /// Interior values y₁ … y_{N−2} of each orbital, ∫P² dr = 1.
     u: Vec<Vec<f64>>,
@@ -158,7 +235,7 @@ impl<'g> Solver<'g> {
     fn new(
         grid: &'g RadialGrid,
         z: f64,
-        expression: AverageEnergyExpression,
+        expression: EnergyExpression,
         orbitals: Vec<Orbital>,
     ) -> Solver<'g> {
         let n = grid.len();
@@ -1008,7 +1085,8 @@ mod tests {
         // (ratio 1.12). Scaled by the customary 0.85 the 1s2p value lands within
         // 5 % (0.95) and the 1s2s value at 0.66: the single-configuration 2¹S level
         // lacks its interaction with 1s² and 1s ns ¹S, which pushes it up (our
-        // reading, not checked here).
+        // reading, not checked here). Term-dependent orbitals:
+        // `helium_singlet_triplet_splittings_from_term_calculations`.
         assert!((ratio_s - 0.78).abs() < 0.02, "1s2s: ratio {ratio_s}");
         assert!((ratio_p - 1.12).abs() < 0.02, "1s2p: ratio {ratio_p}");
         assert!(
@@ -1016,6 +1094,160 @@ mod tests {
             "1s2p scaled: {}",
             0.85 * ratio_p
         );
+    }
+
+    fn solve_term(z: u32, config: &str, spin: PairSpin) -> ScfSolution {
+        let config: Configuration = config.parse().unwrap();
+        hartree_fock_term(
+            z,
+            &config,
+            spin,
+            &ScfOptions::default(),
+            &mut crate::radial::Silent,
+        )
+        .unwrap_or_else(|e| panic!("Z = {z} {config} {spin:?}: {e}"))
+        .solution
+    }
+
+    #[test]
+    fn helium_triplet_and_p_term_energies_match_published_hartree_fock() {
+        // Term-dependent Hartree–Fock totals of He, hartree (Froese Fischer 1977,
+        // "The Hartree–Fock Method for Atoms", tables; Cohen & Kelly 1967; values
+        // from memory, hence the tolerances): 1s2s ³S −2.17425, 1s2p ³P −2.13143,
+        // 1s2p ¹P −2.1225. Ours: −2.1742508 (5 iterations), −2.1314371 (4),
+        // −2.1224642 (4).
+        //
+        // Independent of memory: each of these is the lowest state of its symmetry
+        // (2³S, 2³P°, 2¹P°), so the Hartree–Fock energy lies above the exact
+        // nonrelativistic one (variational theorem) by the correlation energy, a
+        // few millihartree for He: exact −2.1752294, −2.1331642, −2.1238431
+        // (Drake, Springer Handbook of Atomic, Molecular and Optical Physics 2006,
+        // table 11.5; values from memory). And the solutions are stationary, so
+        // −V/T = 2 (virial theorem, Froese Fischer 1977, §2.8).
+        for (config, spin, published, tolerance, exact) in [
+            ("1s 2s", PairSpin::Triplet, -2.17425, 2e-5, -2.1752294),
+            ("1s 2p", PairSpin::Triplet, -2.13143, 2e-5, -2.1331642),
+            ("1s 2p", PairSpin::Singlet, -2.1225, 2e-4, -2.1238431),
+        ] {
+            let solution = solve_term(2, config, spin);
+            let e = solution.energy.total_hartree;
+            assert!(
+                (e - published).abs() < tolerance,
+                "{config} {spin:?}: {e} vs {published}"
+            );
+            assert!(e > exact && e < exact + 3e-3, "{config} {spin:?}: {e}");
+            let virial = solution.energy.virial_ratio();
+            assert!(
+                (virial - 2.0).abs() < 1e-6,
+                "{config} {spin:?}: −V/T = {virial}"
+            );
+        }
+    }
+
+    #[test]
+    fn helium_singlet_triplet_splittings_from_term_calculations() {
+        // E(¹L) − E(³L) from two term-dependent calculations against the He I
+        // levels (NIST ASD 2014, see `helium_level`): 6421.5 cm⁻¹ for 1s2s,
+        // 2048.1 cm⁻¹ for 1s2p (from the ³P centroid).
+        //
+        // Measured here: 1s2p 1969.3 cm⁻¹, ratio 0.962 (with E_av orbitals 2G¹/3
+        // gave 1.12 raw); 1s2s 4261.2 cm⁻¹, ratio 0.664: no better than 0.85 × 2G⁰
+        // from E_av orbitals (0.66). The ¹S solution (−2.1548353 hartree,
+        // 9 iterations, −V/T = 2.036) lies below the exact 2¹S energy −2.1459740
+        // (Drake 2006, value from memory): with orthogonal orbitals the ¹S
+        // function is not orthogonal to 1s², and it has partly collapsed towards
+        // it (see `hartree_fock_term`). Its orbitals remain those of an excited
+        // state: 1s nodeless, 2s with one node, ε(2s) = −0.155 hartree.
+        //
+        // Informative, Slater integrals (cm⁻¹) from each set of orbitals:
+        // G⁰(1s,2s) = 2496.3 (E_av), 3088.4 (³S), 1399.8 (¹S);
+        // G¹(1s,2p) = 3449.2 (E_av), 4229.5 (³P), 2057.6 (¹P).
+        let triplet_s = helium_level("1s.2s", "3S", "1");
+        let singlet_s = helium_level("1s.2s", "1S", "0");
+        let triplet_p = (5.0 * helium_level("1s.2p", "3P*", "2")
+            + 3.0 * helium_level("1s.2p", "3P*", "1")
+            + helium_level("1s.2p", "3P*", "0"))
+            / 9.0;
+        let singlet_p = helium_level("1s.2p", "1P*", "1");
+
+        let s3 = solve_term(2, "1s 2s", PairSpin::Triplet);
+        let s1 = solve_term(2, "1s 2s", PairSpin::Singlet);
+        let p3 = solve_term(2, "1s 2p", PairSpin::Triplet);
+        let p1 = solve_term(2, "1s 2p", PairSpin::Singlet);
+        let split = |singlet: &ScfSolution, triplet: &ScfSolution| {
+            (singlet.energy.total_hartree - triplet.energy.total_hartree) * HARTREE_CM1
+        };
+        let ratio_s = split(&s1, &s3) / (singlet_s - triplet_s);
+        let ratio_p = split(&p1, &p3) / (singlet_p - triplet_p);
+        assert!((ratio_p - 0.962).abs() < 0.01, "1s2p: ratio {ratio_p}");
+        assert!((ratio_p - 1.0).abs() < 0.1, "1s2p: ratio {ratio_p}");
+        assert!((ratio_s - 0.664).abs() < 0.01, "1s2s: ratio {ratio_s}");
+
+        // Within the two-orbital space of the ¹S orbitals, the second root of the
+        // ¹S matrix in 1s², (1s2s)¹S, 2s² (`term::two_s_electron_singlet_energies`)
+        // lies above the exact 2¹S energy −2.1459740 (Hylleraas–Undheim–MacDonald
+        // theorem; exact value Drake 2006, from memory). Measured: −2.1389977
+        // hartree, splitting 7737 cm⁻¹, ratio 1.205: the two ¹S estimates bracket
+        // the observed level (0.66 and 1.20 of the observed splitting).
+        let roots = crate::radial::term::two_s_electron_singlet_energies(
+            &s1.grid,
+            2.0,
+            &s1.orbitals[0].p,
+            &s1.orbitals[1].p,
+        );
+        assert!(
+            roots[1] > -2.1459740 && roots[1] < -2.1459740 + 0.01,
+            "{roots:?}"
+        );
+        let ratio_ci = (roots[1] - s3.energy.total_hartree) * HARTREE_CM1 / (singlet_s - triplet_s);
+        assert!((ratio_ci - 1.205).abs() < 0.01, "1s2s CI: ratio {ratio_ci}");
+
+        // 1s3p in the same way: 625.7 cm⁻¹ against 644.8 cm⁻¹ (NIST ASD 2014, ¹P°
+        // less the ³P° centroid), ratio 0.970. (1s3s: 1081.4 against 1628.0,
+        // ratio 0.66, the same partial collapse as 1s2s; not checked here.)
+        let triplet_3p = (5.0 * helium_level("1s.3p", "3P*", "2")
+            + 3.0 * helium_level("1s.3p", "3P*", "1")
+            + helium_level("1s.3p", "3P*", "0"))
+            / 9.0;
+        let singlet_3p = helium_level("1s.3p", "1P*", "1");
+        let ratio_3p = split(
+            &solve_term(2, "1s 3p", PairSpin::Singlet),
+            &solve_term(2, "1s 3p", PairSpin::Triplet),
+        ) / (singlet_3p - triplet_3p);
+        assert!((ratio_3p - 0.970).abs() < 0.01, "1s3p: ratio {ratio_3p}");
+
+        // The ¹S orbitals are still those of 1s2s.
+        assert_eq!(s1.orbital(1, 0).unwrap().nodes(), 0);
+        assert_eq!(s1.orbital(2, 0).unwrap().nodes(), 1);
+        let e2s = s1.orbital(2, 0).unwrap().energy_hartree;
+        assert!((-0.2..-0.1).contains(&e2s), "ε(2s) = {e2s}");
+
+        // The exchange integral grows from E_av orbitals to triplet orbitals (the
+        // triplet's outer electron is pulled in: its exchange term is attractive).
+        let g = |s: &ScfSolution, k: u32| {
+            gk_integral(&s.grid, k, &s.orbitals[0].p, &s.orbitals[1].p) * HARTREE_CM1
+        };
+        let average_s = solve(2, "1s 2s");
+        let average_p = solve(2, "1s 2p");
+        assert!(g(&s3, 0) > 1.2 * g(&average_s, 0));
+        assert!(g(&p3, 1) > 1.2 * g(&average_p, 1));
+    }
+
+    #[test]
+    fn magnesium_3s3p_terms_converge() {
+        // Mg 1s2.2s2.2p6.3s.3p: closed inner s and p shells of the same l as the
+        // open pair (the rotation analysis of `fix_mixing`). Convergence and the
+        // virial theorem (Froese Fischer 1977, §2.8); the splitting is reported,
+        // not checked against a source: ¹P − ³P = 16588 cm⁻¹ here, against about
+        // 13200 cm⁻¹ observed (Mg I 3s3p ¹P° 35051 cm⁻¹, ³P° near 21870 cm⁻¹;
+        // NIST ASD, values from memory), ratio 1.26.
+        let triplet = solve_term(12, "1s2 2s2 2p6 3s 3p", PairSpin::Triplet);
+        let singlet = solve_term(12, "1s2 2s2 2p6 3s 3p", PairSpin::Singlet);
+        for s in [&triplet, &singlet] {
+            assert!((s.energy.virial_ratio() - 2.0).abs() < 1e-6);
+        }
+        let split = (singlet.energy.total_hartree - triplet.energy.total_hartree) * HARTREE_CM1;
+        assert!((split / 13_200.0 - 1.26).abs() < 0.05, "split {split} cm⁻¹");
     }
 
     #[test]

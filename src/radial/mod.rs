@@ -16,10 +16,13 @@
 //! - [`slater`]: the Y^k function and the integrals F^k, G^k, R^k, linear in the
 //!   number of grid points.
 //! - [`average`]: the configuration-average energy as a list of Slater integrals.
+//! - [`term`]: the energy of one term (¹L or ³L) of closed shells + s + l.
 //! - [`energy`]: E_av of a set of orbitals, with its kinetic and potential parts.
 //! - [`mod@local_exchange`]: the Hartree–Fock–Slater field (Slater exchange, Latter
 //!   tail), which also starts the Hartree–Fock iterations.
-//! - [`mod@hartree_fock`]: Hartree–Fock for the average energy of a configuration.
+//! - [`mod@hartree_fock`]: Hartree–Fock for the average energy of a configuration
+//!   ([`hartree_fock()`]) or for one term of an s·l configuration
+//!   ([`hartree_fock_term`]).
 //! - [`scf`]: settings, progress reports ([`ScfObserver`]) and solutions shared by
 //!   the field methods.
 //! - [`integrals`]: the named, scaled integrals of one or more configurations
@@ -53,10 +56,11 @@ pub mod numerov;
 mod operator;
 pub mod scf;
 pub mod slater;
+pub mod term;
 mod three_j;
 
 pub use grid::{GridSpec, RadialGrid};
-pub use hartree_fock::hartree_fock;
+pub use hartree_fock::{hartree_fock, hartree_fock_term};
 pub use integrals::{IntegralKind, RadialIntegral, ScaleFactors, radial_integrals};
 pub use level_model::{model_file, starting_model};
 pub use local_exchange::local_exchange;
@@ -64,6 +68,7 @@ pub use scf::{
     Method, Orbital, ScfObserver, ScfOptions, ScfProgress, ScfSolution, ScfStage, Silent,
     screened_hydrogenic,
 };
+pub use term::PairSpin;
 
 /// Errors of the radial solver.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
