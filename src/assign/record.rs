@@ -6,7 +6,7 @@ use std::io::BufRead;
 use serde::{Deserialize, Serialize};
 
 use super::{Flag, LineAssignment};
-use crate::levels::csv_text::{LineStarts, csv_reader, read_text};
+use crate::levels::csv_text::{CsvError, CsvHeader, csv_rows, read_csv_text};
 use crate::levels::{LevelLabel, Predictions, SelectionRules};
 use crate::linelist::{GivenPosition, LineList};
 use crate::location::Location;
@@ -372,28 +372,28 @@ pub fn read_assignments(
     mut reader: impl BufRead,
     source: &str,
 ) -> Result<AssignmentFile, AssignmentReadError> {
-    let text = read_text(&mut reader, MAX_ASSIGN_CSV_BYTES).map_err(|e| {
-        AssignmentReadError::Unreadable {
-            location: Location::line(source, e.line()),
-            message: e.message("an assign CSV"),
-        }
-    })?;
-    let lines = LineStarts::new(&text);
-    let mut csv = csv_reader(&text);
-    let mut rows = csv.records();
-    let unreadable = |e: csv::Error| AssignmentReadError::Unreadable {
-        location: Location::line(source, e.position().map_or(0, |p| lines.line_of(p.byte()))),
-        message: e.to_string(),
-    };
-    let header = match rows.next() {
-        Some(row) => row.map_err(unreadable)?,
-        None => {
-            return Err(AssignmentReadError::Empty {
-                location: Location::source(source),
-            });
+    let error = |e: CsvError| {
+        let location = Location::line(source, e.line());
+        match e {
+            CsvError::Unreadable { message, .. } => {
+                AssignmentReadError::Unreadable { location, message }
+            }
+            CsvError::Empty => AssignmentReadError::Empty { location },
+            CsvError::FieldCount {
+                expected, found, ..
+            } => AssignmentReadError::FieldCount {
+                location,
+                expected,
+                found,
+            },
         }
     };
-    let header_line = lines.line_of_record(&header);
+    let text = read_csv_text(&mut reader, MAX_ASSIGN_CSV_BYTES, "an assign CSV").map_err(error)?;
+    let (header, rows) = csv_rows(&text).map_err(error)?;
+    let CsvHeader {
+        fields: header,
+        line: header_line,
+    } = header;
     let position = |name: &str| header.iter().position(|h| h == name);
     for column in REQUIRED {
         if position(column).is_none() {
@@ -414,18 +414,7 @@ pub fn read_assignments(
 
     let mut records = Vec::new();
     for row in rows {
-        let row = row.map_err(unreadable)?;
-        let line = lines.line_of_record(&row);
-        if row.iter().all(str::is_empty) {
-            continue;
-        }
-        if row.len() != header.len() {
-            return Err(AssignmentReadError::FieldCount {
-                location: Location::line(source, line),
-                expected: header.len(),
-                found: row.len(),
-            });
-        }
+        let (line, row) = row.map_err(error)?;
         let fields = Fields {
             row: &row,
             index: &index,

@@ -1,17 +1,15 @@
 //! `termsight assign`: match a measured line list against predicted lines.
 
-use std::fs::File;
-use std::io::{self, BufReader, Write};
+use std::io::{self, Write};
 use std::path::{Path, PathBuf};
 
 use clap::ValueEnum;
 
 use super::CliError;
-use super::output::write_atomically;
+use super::input::{open_input, read_levels_file};
+use super::output::write_output;
 use crate::assign::{MatchConfig, MatchProgress, assign_lines_with_progress, records};
-use crate::levels::{
-    EMBEDDED_TABLES, LevelTable, Predictions, embedded_table, predict_from_table, read_level_table,
-};
+use crate::levels::{EMBEDDED_TABLES, LevelTable, Predictions, embedded_table, predict_from_table};
 use crate::linelist::{GlobalUncertainty, LineList, ReadOptions, read_line_list};
 use crate::notation::Species;
 use crate::report::{
@@ -228,16 +226,7 @@ pub fn run(args: AssignArgs) -> Result<(), CliError> {
         Format::Csv => assign_csv(&report),
         Format::Json => assign_json(&report).into_bytes(),
     };
-    match &args.output {
-        Some(path) => write_atomically(path, &bytes),
-        None => io::stdout()
-            .lock()
-            .write_all(&bytes)
-            .map_err(|source| CliError::Io {
-                path: "<stdout>".into(),
-                source,
-            }),
-    }
+    write_output(args.output.as_deref(), &bytes)
 }
 
 fn match_config(args: &AssignArgs) -> Result<MatchConfig, CliError> {
@@ -278,7 +267,7 @@ fn predictions(
     } else {
         let tables = level_files
             .iter()
-            .map(|path| read_levels(path))
+            .map(|path| read_levels_file(path))
             .collect::<Result<Vec<_>, _>>()?;
         for species in &wanted {
             if !tables.iter().any(|t| t.species().contains(species)) {
@@ -356,15 +345,6 @@ fn compiled_tables(wanted: &[Species]) -> Result<Vec<LevelTable>, CliError> {
         .collect()
 }
 
-fn read_levels(path: &Path) -> Result<LevelTable, CliError> {
-    let name = path.display().to_string();
-    let file = File::open(path).map_err(|source| CliError::Io {
-        path: name.clone(),
-        source,
-    })?;
-    read_level_table(BufReader::new(file), &name).map_err(|e| CliError::Message(e.to_string()))
-}
-
 fn read_lines(args: &AssignArgs) -> Result<LineList, CliError> {
     let options = ReadOptions {
         medium: args.medium.map(|m| match m {
@@ -377,17 +357,8 @@ fn read_lines(args: &AssignArgs) -> Result<LineList, CliError> {
         ..ReadOptions::default()
     };
     let read_error = |e: crate::linelist::LineListError| CliError::Message(e.to_string());
-    if args.lines.as_os_str() == "-" {
-        let stdin = io::stdin();
-        read_line_list(stdin.lock(), "<stdin>", &options).map_err(read_error)
-    } else {
-        let name = args.lines.display().to_string();
-        let file = File::open(&args.lines).map_err(|source| CliError::Io {
-            path: name.clone(),
-            source,
-        })?;
-        read_line_list(BufReader::new(file), &name, &options).map_err(read_error)
-    }
+    let (reader, name) = open_input(&args.lines)?;
+    read_line_list(reader, &name, &options).map_err(read_error)
 }
 
 fn report_skipped(list: &LineList) {

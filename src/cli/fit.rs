@@ -1,15 +1,15 @@
 //! `termsight fit MODEL.toml --levels LEVELS.csv`: fit the free parameters of a
 //! level model to experimental levels.
 
-use std::fs::File;
-use std::io::{BufReader, Write};
-use std::path::{Path, PathBuf};
+use std::io::Write;
+use std::path::PathBuf;
 use std::time::{Duration, Instant};
 
 use super::CliError;
-use super::output::write_atomically;
+use super::input::{open_file, read_levels_file};
+use super::output::{write_atomically, write_output};
 use crate::fit::{Convergence, FitOptions, FitProgress, Weighting, fit_levels, simple_picture};
-use crate::levels::{EMBEDDED_TABLES, LevelTable, embedded_table, read_level_table};
+use crate::levels::{EMBEDDED_TABLES, LevelTable, embedded_table};
 use crate::notation::Species;
 use crate::report::{FitReport, fit_json, fit_table};
 use crate::structure::model::{LoadedModel, read_model, write_model};
@@ -117,13 +117,9 @@ const PROGRESS_AFTER: Duration = Duration::from_secs(1);
 
 /// Run `termsight fit`.
 pub fn run(args: FitArgs) -> Result<(), CliError> {
-    let model_path = args.model.display().to_string();
-    let file = File::open(&args.model).map_err(|source| CliError::Io {
-        path: model_path.clone(),
-        source,
-    })?;
-    let LoadedModel { model, structure } = read_model(BufReader::new(file), &model_path)
-        .map_err(|e| CliError::Message(e.to_string()))?;
+    let (reader, model_path) = open_file(&args.model)?;
+    let LoadedModel { model, structure } =
+        read_model(reader, &model_path).map_err(|e| CliError::Message(e.to_string()))?;
     let table = level_table(&args, model.species)?;
 
     let mut options = FitOptions::default();
@@ -202,15 +198,7 @@ pub fn run(args: FitArgs) -> Result<(), CliError> {
             );
         }
     }
-    match &args.output {
-        Some(path) => write_atomically(path, text.as_bytes()),
-        None => std::io::stdout()
-            .write_all(text.as_bytes())
-            .map_err(|source| CliError::Io {
-                path: "<stdout>".into(),
-                source,
-            }),
-    }
+    write_output(args.output.as_deref(), text.as_bytes())
 }
 
 /// The level table: the file of --levels, or the compiled table of --species.
@@ -234,13 +222,4 @@ fn level_table(args: &FitArgs, model_species: Species) -> Result<LevelTable, Cli
         ))
     })?;
     table.load().map_err(|e| CliError::Message(e.to_string()))
-}
-
-fn read_levels_file(path: &Path) -> Result<LevelTable, CliError> {
-    let name = path.display().to_string();
-    let file = File::open(path).map_err(|source| CliError::Io {
-        path: name.clone(),
-        source,
-    })?;
-    read_level_table(BufReader::new(file), &name).map_err(|e| CliError::Message(e.to_string()))
 }

@@ -1,15 +1,14 @@
 //! `termsight levels MODEL.toml`: every level of an ion's level model, sorted by
 //! energy, with J, parity, leading LS components and Landé g.
 
-use std::fs::File;
-use std::io::{BufReader, Write};
 use std::path::PathBuf;
 
 use comfy_table::{CellAlignment, Table, presets};
 use serde::Serialize;
 
 use super::CliError;
-use super::output::write_atomically;
+use super::input::open_file;
+use super::output::write_output;
 use crate::structure::model::{LoadedModel, read_model};
 use crate::structure::{Level, LevelStructure};
 
@@ -42,13 +41,9 @@ pub struct LevelsArgs {
 
 /// Run `termsight levels`.
 pub fn run(args: LevelsArgs) -> Result<(), CliError> {
-    let path = args.model.display().to_string();
-    let file = File::open(&args.model).map_err(|source| CliError::Io {
-        path: path.clone(),
-        source,
-    })?;
+    let (reader, path) = open_file(&args.model)?;
     let LoadedModel { model, structure } =
-        read_model(BufReader::new(file), &path).map_err(|e| CliError::Message(e.to_string()))?;
+        read_model(reader, &path).map_err(|e| CliError::Message(e.to_string()))?;
     let values = model.values_for(&structure);
     let levels = structure
         .levels(&values)
@@ -59,15 +54,7 @@ pub fn run(args: LevelsArgs) -> Result<(), CliError> {
         LevelsFormat::Csv => render_csv(&rows),
         LevelsFormat::Json => render_json(&rows),
     };
-    match &args.output {
-        Some(out) => write_atomically(out, text.as_bytes()),
-        None => std::io::stdout()
-            .write_all(text.as_bytes())
-            .map_err(|source| CliError::Io {
-                path: "<stdout>".into(),
-                source,
-            }),
-    }
+    write_output(args.output.as_deref(), text.as_bytes())
 }
 
 /// One LS component of a printed level.

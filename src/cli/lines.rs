@@ -1,13 +1,13 @@
 //! `termsight lines MODEL.toml`: the E1 lines a level model predicts, with
 //! wavelengths, line strengths, gf, A and flags.
 
-use std::fs::File;
-use std::io::{self, BufReader, Write};
+use std::io::{self, Write};
 use std::path::{Path, PathBuf};
 
 use super::CliError;
 use super::assign::AirFormulaArg;
-use super::output::write_atomically;
+use super::input::open_file;
+use super::output::write_output;
 use crate::report::{LineSelection, LinesReport, lines_csv, lines_json, lines_table};
 use crate::structure::DipoleIntegral;
 use crate::structure::model::{LoadedModel, read_model};
@@ -94,13 +94,8 @@ pub(crate) struct ModelLines {
 
 /// Read `path` and predict its lines; errors name the file.
 pub(crate) fn model_lines(path: &Path) -> Result<ModelLines, CliError> {
-    let name = path.display().to_string();
-    let file = File::open(path).map_err(|source| CliError::Io {
-        path: name.clone(),
-        source,
-    })?;
-    let loaded =
-        read_model(BufReader::new(file), &name).map_err(|e| CliError::Message(e.to_string()))?;
+    let (reader, name) = open_file(path)?;
+    let loaded = read_model(reader, &name).map_err(|e| CliError::Message(e.to_string()))?;
     let structure = &loaded.structure;
     let message =
         |e: crate::transitions::TransitionError| CliError::Message(format!("{name}: {e}"));
@@ -183,14 +178,5 @@ pub fn run(args: LinesArgs) -> Result<(), CliError> {
         LinesFormat::Csv => lines_csv(&report),
         LinesFormat::Json => lines_json(&report).into_bytes(),
     };
-    match &args.output {
-        Some(path) => write_atomically(path, &bytes),
-        None => io::stdout()
-            .lock()
-            .write_all(&bytes)
-            .map_err(|source| CliError::Io {
-                path: "<stdout>".into(),
-                source,
-            }),
-    }
+    write_output(args.output.as_deref(), &bytes)
 }

@@ -8,6 +8,7 @@
 pub mod args;
 pub mod assign;
 pub mod fit;
+pub mod input;
 pub mod levels;
 pub mod lines;
 pub mod optimize;

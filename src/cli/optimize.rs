@@ -1,15 +1,14 @@
 //! `termsight optimize ASSIGNED.csv`: level energies from the accepted assignments,
 //! by weighted least squares, with Ritz wavenumbers and wavelengths of every line.
 
-use std::fs::File;
-use std::io::{self, BufReader, Write};
 use std::path::PathBuf;
 
 use clap::ValueEnum;
 
 use super::CliError;
 use super::assign::AirFormulaArg;
-use super::output::write_atomically;
+use super::input::open_input;
+use super::output::{write_atomically, write_output};
 use crate::levels::LevelLabel;
 use crate::levels::optimize::{
     BlendPolicy, ClassifiedLines, OptimizeOptions, optimize_classified, read_classified_lines,
@@ -138,16 +137,7 @@ pub fn run(args: OptimizeArgs) -> Result<(), CliError> {
         Format::Csv => optimized_levels_csv(&report, &context),
         Format::Json => optimize_json(&report, &context).into_bytes(),
     };
-    match &args.output {
-        Some(path) => write_atomically(path, &bytes),
-        None => io::stdout()
-            .lock()
-            .write_all(&bytes)
-            .map_err(|source| CliError::Io {
-                path: "<stdout>".into(),
-                source,
-            }),
-    }
+    write_output(args.output.as_deref(), &bytes)
 }
 
 fn options(args: &OptimizeArgs) -> Result<OptimizeOptions, CliError> {
@@ -193,14 +183,6 @@ fn read_input(
 ) -> Result<ClassifiedLines, CliError> {
     let read_error =
         |e: crate::levels::optimize::ClassifiedReadError| CliError::Message(e.to_string());
-    if args.assigned.as_os_str() == "-" {
-        read_classified_lines(io::stdin().lock(), "<stdin>", default_species).map_err(read_error)
-    } else {
-        let name = args.assigned.display().to_string();
-        let file = File::open(&args.assigned).map_err(|source| CliError::Io {
-            path: name.clone(),
-            source,
-        })?;
-        read_classified_lines(BufReader::new(file), &name, default_species).map_err(read_error)
-    }
+    let (reader, name) = open_input(&args.assigned)?;
+    read_classified_lines(reader, &name, default_species).map_err(read_error)
 }

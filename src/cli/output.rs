@@ -1,6 +1,6 @@
 //! Writing result files safely.
 
-use std::io::Write;
+use std::io::{self, Write};
 use std::path::Path;
 
 use super::CliError;
@@ -22,6 +22,21 @@ pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<(), CliError> {
     temp.as_file().sync_all().map_err(io_error)?;
     temp.persist(path).map_err(|e| io_error(e.error))?;
     Ok(())
+}
+
+/// Write `bytes` to the file at `path` as [`write_atomically`] does, or to standard
+/// output when there is no path.
+pub fn write_output(path: Option<&Path>, bytes: &[u8]) -> Result<(), CliError> {
+    match path {
+        Some(path) => write_atomically(path, bytes),
+        None => io::stdout()
+            .lock()
+            .write_all(bytes)
+            .map_err(|source| CliError::Io {
+                path: "<stdout>".into(),
+                source,
+            }),
+    }
 }
 
 #[cfg(test)]

@@ -1,5 +1,6 @@
 //! Reading a small CSV document whole, with `#` comment lines, and telling the line
-//! of each record. Shared by the level-table and assign-CSV readers.
+//! of each record. Shared by the readers of level tables, assign CSVs and
+//! classified lines.
 //!
 //! Hand-written because the `csv` crate's own line count skips blank and comment
 //! lines, while messages must name the line of the file.
@@ -128,6 +129,122 @@ pub(crate) fn csv_reader(text: &str) -> csv::Reader<&[u8]> {
         .from_reader(text.as_bytes())
 }
 
+/// Why a CSV document could not be read, for the caller to turn into its own error
+/// (naming the source and what kind of document it expected).
+#[derive(Debug, Clone, PartialEq)]
+pub(crate) enum CsvError {
+    /// The text or a record could not be read (I/O, bad UTF-8, too large).
+    Unreadable {
+        /// 1-based line, 0 when it concerns the whole source.
+        line: usize,
+        /// What went wrong.
+        message: String,
+    },
+    /// No header line.
+    Empty,
+    /// A row has a different number of fields from the header.
+    FieldCount {
+        /// 1-based line of the row.
+        line: usize,
+        /// Fields in the header.
+        expected: usize,
+        /// Fields in the row.
+        found: usize,
+    },
+}
+
+impl CsvError {
+    /// 1-based line of the problem, 0 when it concerns the whole source.
+    pub(crate) fn line(&self) -> usize {
+        match self {
+            CsvError::Unreadable { line, .. } | CsvError::FieldCount { line, .. } => *line,
+            CsvError::Empty => 0,
+        }
+    }
+}
+
+/// [`read_text`], with its error as [`CsvError::Unreadable`]; `what` names the kind
+/// of document for the message (e.g. `a level table`).
+pub(crate) fn read_csv_text(
+    reader: &mut impl BufRead,
+    max_bytes: u64,
+    what: &str,
+) -> Result<String, CsvError> {
+    read_text(reader, max_bytes).map_err(|e| CsvError::Unreadable {
+        line: e.line(),
+        message: e.message(what),
+    })
+}
+
+/// The header line of a CSV document.
+pub(crate) struct CsvHeader {
+    /// Its fields.
+    pub(crate) fields: csv::StringRecord,
+    /// Its 1-based line.
+    pub(crate) line: usize,
+}
+
+/// The header of a text from [`read_text`] and an iterator over the rows after it:
+/// each row with its 1-based line, blank rows left out, a row whose field count
+/// differs from the header's an error ([`CsvError::FieldCount`]).
+pub(crate) fn csv_rows(text: &str) -> Result<(CsvHeader, CsvRows<'_>), CsvError> {
+    let mut rows = CsvRows {
+        lines: LineStarts::new(text),
+        records: csv_reader(text).into_records(),
+        width: 0,
+    };
+    let fields = match rows.records.next() {
+        Some(record) => record.map_err(|e| rows.unreadable(&e))?,
+        None => return Err(CsvError::Empty),
+    };
+    let line = rows.lines.line_of_record(&fields);
+    rows.width = fields.len();
+    Ok((CsvHeader { fields, line }, rows))
+}
+
+/// The rows after the header, from [`csv_rows`].
+pub(crate) struct CsvRows<'t> {
+    lines: LineStarts<'t>,
+    records: csv::StringRecordsIntoIter<&'t [u8]>,
+    /// Fields in the header.
+    width: usize,
+}
+
+impl CsvRows<'_> {
+    /// A reader's error, located.
+    fn unreadable(&self, error: &csv::Error) -> CsvError {
+        CsvError::Unreadable {
+            line: error.position().map_or(0, |p| self.lines.line_of(p.byte())),
+            message: error.to_string(),
+        }
+    }
+}
+
+impl Iterator for CsvRows<'_> {
+    type Item = Result<(usize, csv::StringRecord), CsvError>;
+
+    fn next(&mut self) -> Option<Self::Item> {
+        loop {
+            let record = match self.records.next()? {
+                Ok(record) => record,
+                Err(e) => return Some(Err(self.unreadable(&e))),
+            };
+            if record.iter().all(str::is_empty) {
+                continue; // a blank line
+            }
+            let line = self.lines.line_of_record(&record);
+            if record.len() != self.width {
+                return Some(Err(CsvError::FieldCount {
+                    line,
+                    expected: self.width,
+                    found: record.len(),
+                }));
+            }
+            return Some(Ok((line, record)));
+        }
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -142,6 +259,35 @@ mod tests {
             .map(|r| lines.line_of_record(&r.unwrap()))
             .collect();
         assert_eq!(found, vec![2, 5]);
+    }
+
+    #[test]
+    fn rows_come_with_their_lines_and_field_count_checked() {
+        let text = read_csv_text(&mut "# c\na,b\n\n1,2\n3\n".as_bytes(), 100, "x").unwrap();
+        let (header, rows) = csv_rows(&text).unwrap();
+        assert_eq!((header.fields.len(), header.line), (2, 2));
+        let rows: Vec<_> = rows
+            .map(|r| r.map(|(line, row)| (line, row.len())))
+            .collect();
+        assert_eq!(
+            rows,
+            vec![
+                Ok((4, 2)),
+                Err(CsvError::FieldCount {
+                    line: 5,
+                    expected: 2,
+                    found: 1
+                })
+            ]
+        );
+        assert_eq!(csv_rows("\n\n").err(), Some(CsvError::Empty));
+        assert_eq!(
+            read_csv_text(&mut "abcdef".as_bytes(), 3, "x"),
+            Err(CsvError::Unreadable {
+                line: 0,
+                message: "larger than 0 MiB, too large for x".into()
+            })
+        );
     }
 
     #[test]

@@ -5,7 +5,7 @@ use std::io::BufRead;
 
 use serde::{Deserialize, Serialize};
 
-use super::csv_text::{LineStarts, csv_reader, read_text};
+use super::csv_text::{CsvError, CsvHeader, csv_rows, read_csv_text};
 use super::label::LevelLabel;
 use crate::location::Location;
 use crate::notation::Species;
@@ -166,49 +166,40 @@ pub fn read_level_table(
     mut reader: impl BufRead,
     source: &str,
 ) -> Result<LevelTable, LevelTableError> {
-    let text =
-        read_text(&mut reader, MAX_LEVEL_TABLE_BYTES).map_err(|e| LevelTableError::Unreadable {
-            location: Location::line(source, e.line()),
-            message: e.message("a level table"),
-        })?;
-    let mut csv = csv_reader(&text);
-    let lines = LineStarts::new(&text);
-    let mut records = csv.records();
-    let unreadable = |e: csv::Error| LevelTableError::Unreadable {
-        location: Location::line(source, e.position().map_or(0, |p| lines.line_of(p.byte()))),
-        message: csv_message(&e),
-    };
-
-    let header = match records.next() {
-        Some(record) => record.map_err(unreadable)?,
-        None => {
-            return Err(LevelTableError::Empty {
-                location: Location::source(source),
+    let error = |e: CsvError| {
+        let location = Location::line(source, e.line());
+        match e {
+            CsvError::Unreadable { message, .. } => {
+                LevelTableError::Unreadable { location, message }
+            }
+            CsvError::Empty => LevelTableError::Empty {
+                location,
                 problem: format!(
                     "the level table is empty; expected a header line {}",
                     LEVEL_COLUMNS.join(",")
                 ),
-            });
+            },
+            CsvError::FieldCount {
+                expected, found, ..
+            } => LevelTableError::FieldCount {
+                location,
+                expected,
+                found,
+            },
         }
     };
-    let header_line = lines.line_of_record(&header);
+    let text = read_csv_text(&mut reader, MAX_LEVEL_TABLE_BYTES, "a level table").map_err(error)?;
+    let (header, records) = csv_rows(&text).map_err(error)?;
+    let CsvHeader {
+        fields: header,
+        line: header_line,
+    } = header;
     let columns = Columns::find(&header, || Location::line(source, header_line))?;
 
     let mut levels = Vec::new();
     let mut first_seen: HashMap<(Species, LevelLabel), usize> = HashMap::new();
     for record in records {
-        let record = record.map_err(unreadable)?;
-        let line = lines.line_of_record(&record);
-        if record.iter().all(str::is_empty) {
-            continue; // a blank line
-        }
-        if record.len() != header.len() {
-            return Err(LevelTableError::FieldCount {
-                location: Location::line(source, line),
-                expected: header.len(),
-                found: record.len(),
-            });
-        }
+        let (line, record) = record.map_err(error)?;
         let level = read_row(&record, &columns, source, line)?;
         let key = (level.species, level.label.clone());
         if let Some(&first_line) = first_seen.get(&key) {
@@ -322,13 +313,6 @@ pub const MAX_LEVEL_TABLE_BYTES: u64 = 64 << 20;
 /// A finite number, or `None`.
 fn number(text: &str) -> Option<f64> {
     text.parse::<f64>().ok().filter(|v| v.is_finite())
-}
-
-fn csv_message(error: &csv::Error) -> String {
-    match error.kind() {
-        csv::ErrorKind::Io(e) => e.to_string(),
-        _ => error.to_string(),
-    }
 }
 
 #[cfg(test)]

@@ -17,6 +17,7 @@
 mod assign_csv;
 mod assign_json;
 mod assign_table;
+mod csv_document;
 mod fit;
 mod model_lines;
 mod optimize;

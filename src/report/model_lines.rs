@@ -4,6 +4,7 @@
 use comfy_table::{CellAlignment, ContentArrangement, LineStyle, Table, TableStyle};
 use serde::Serialize;
 
+use super::csv_document::csv_document;
 use super::significant;
 use crate::levels::LevelLabel;
 use crate::structure::DipoleIntegral;
@@ -318,19 +319,9 @@ pub fn lines_table(report: &LinesReport) -> String {
 /// The CSV: the description as `#` lines, the header [`LINE_COLUMNS`], one row
 /// per line; numbers with the fewest digits that read back to the same value.
 pub fn lines_csv(report: &LinesReport) -> Vec<u8> {
-    let mut out = Vec::new();
-    for line in report.description() {
-        out.extend_from_slice(b"# ");
-        out.extend_from_slice(line.as_bytes());
-        out.push(b'\n');
-    }
-    let mut writer = csv::WriterBuilder::new()
-        .terminator(csv::Terminator::Any(b'\n'))
-        .from_writer(out);
-    let _ = writer.write_record(LINE_COLUMNS);
-    for row in &report.rows {
-        let configuration = |l: &LevelLabel| l.configuration.to_string();
-        let _ = writer.write_record([
+    let configuration = |l: &LevelLabel| l.configuration.to_string();
+    let rows = report.rows.iter().map(|row| {
+        [
             row.wavenumber_cm1.to_string(),
             row.wavelength_nm.to_string(),
             row.medium.name().to_string(),
@@ -349,11 +340,9 @@ pub fn lines_csv(report: &LinesReport) -> Vec<u8> {
             row.log_gf.to_string(),
             row.a_per_s.to_string(),
             row.flags.join(";"),
-        ]);
-    }
-    writer
-        .into_inner()
-        .unwrap_or_else(|e| e.into_inner().get_ref().clone())
+        ]
+    });
+    csv_document(&report.description(), LINE_COLUMNS, rows)
 }
 
 /// The JSON: the report's fields, with the description, and one object per line.

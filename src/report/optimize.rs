@@ -5,6 +5,7 @@
 use comfy_table::{CellAlignment, LineStyle, Table, TableStyle};
 use serde::Serialize;
 
+use super::csv_document::csv_document;
 use crate::levels::LEVEL_COLUMNS;
 use crate::levels::optimize::{
     BlendPolicy, LevelResult, LineResult, OptimizationReport, OptimizeOptions, SpeciesResult,
@@ -293,32 +294,12 @@ pub const OPTIMIZED_LEVEL_EXTRA_COLUMNS: [&str; 5] = [
     "flags",
 ];
 
-fn csv_document(description: &[String], header: Vec<String>, rows: Vec<Vec<String>>) -> Vec<u8> {
-    let mut out = Vec::new();
-    for line in description {
-        out.extend_from_slice(b"# ");
-        out.extend_from_slice(line.as_bytes());
-        out.push(b'\n');
-    }
-    let mut writer = csv::WriterBuilder::new()
-        .terminator(csv::Terminator::Any(b'\n'))
-        .from_writer(out);
-    // Writing to a Vec cannot fail.
-    let _ = writer.write_record(&header);
-    for row in rows {
-        let _ = writer.write_record(&row);
-    }
-    writer
-        .into_inner()
-        .unwrap_or_else(|e| e.into_inner().get_ref().clone())
-}
-
 /// The optimised levels as a level table (`species,configuration,term,J,energy_cm1,
 /// uncertainty_cm1,source` and [`OPTIMIZED_LEVEL_EXTRA_COLUMNS`]), readable by
 /// [`crate::levels::read_level_table`]. Numbers are printed with the fewest digits
 /// that read back to the same value.
 pub fn optimized_levels_csv(report: &OptimizationReport, context: &OptimizeContext<'_>) -> Vec<u8> {
-    let header = LEVEL_COLUMNS
+    let header: Vec<String> = LEVEL_COLUMNS
         .iter()
         .chain(OPTIMIZED_LEVEL_EXTRA_COLUMNS.iter())
         .map(|c| c.to_string())
@@ -378,7 +359,7 @@ pub const OPTIMIZED_LINE_COLUMNS: [&str; 18] = [
 /// Every line with its Ritz wavenumber and wavelength (conventional medium) and their
 /// uncertainties from the covariance matrix, and its residual.
 pub fn optimized_lines_csv(report: &OptimizationReport, context: &OptimizeContext<'_>) -> Vec<u8> {
-    let header = OPTIMIZED_LINE_COLUMNS
+    let header: Vec<String> = OPTIMIZED_LINE_COLUMNS
         .iter()
         .map(|c| c.to_string())
         .collect();

@@ -20,7 +20,7 @@
 use std::io::BufRead;
 
 use crate::levels::LevelLabel;
-use crate::levels::csv_text::{LineStarts, csv_reader, read_text};
+use crate::levels::csv_text::{CsvError, CsvHeader, csv_rows, read_csv_text};
 use crate::location::Location;
 use crate::notation::Species;
 
@@ -158,32 +158,35 @@ pub fn read_classified_lines(
     source: &str,
     default_species: Option<Species>,
 ) -> Result<ClassifiedLines, ClassifiedReadError> {
-    let text = read_text(&mut reader, MAX_CLASSIFIED_BYTES).map_err(|e| {
-        ClassifiedReadError::Unreadable {
-            location: Location::line(source, e.line()),
-            message: e.message("a classified-line file"),
-        }
-    })?;
-    let lines = LineStarts::new(&text);
-    let mut csv = csv_reader(&text);
-    let mut rows = csv.records();
-    let unreadable = |e: csv::Error| ClassifiedReadError::Unreadable {
-        location: Location::line(source, e.position().map_or(0, |p| lines.line_of(p.byte()))),
-        message: e.to_string(),
-    };
-    let header = match rows.next() {
-        Some(row) => row.map_err(unreadable)?,
-        None => {
-            return Err(ClassifiedReadError::Empty {
-                location: Location::source(source),
+    let error = |e: CsvError| {
+        let location = Location::line(source, e.line());
+        match e {
+            CsvError::Unreadable { message, .. } => {
+                ClassifiedReadError::Unreadable { location, message }
+            }
+            CsvError::Empty => ClassifiedReadError::Empty {
+                location,
                 problem: format!(
                     "the file is empty; expected a header with at least {}",
                     REQUIRED.join(",")
                 ),
-            });
+            },
+            CsvError::FieldCount {
+                expected, found, ..
+            } => ClassifiedReadError::FieldCount {
+                location,
+                expected,
+                found,
+            },
         }
     };
-    let header_line = lines.line_of_record(&header);
+    let text = read_csv_text(&mut reader, MAX_CLASSIFIED_BYTES, "a classified-line file")
+        .map_err(error)?;
+    let (header, rows) = csv_rows(&text).map_err(error)?;
+    let CsvHeader {
+        fields: header,
+        line: header_line,
+    } = header;
     let position = |name: &str| header.iter().position(|h| h.eq_ignore_ascii_case(name));
     let mut required = [0usize; REQUIRED.len()];
     for (slot, column) in required.iter_mut().zip(REQUIRED) {
@@ -212,19 +215,8 @@ pub fn read_classified_lines(
     };
     let mut data_row = 0;
     for row in rows {
-        let row = row.map_err(unreadable)?;
-        let line = lines.line_of_record(&row);
-        if row.iter().all(str::is_empty) {
-            continue;
-        }
+        let (line, row) = row.map_err(error)?;
         data_row += 1;
-        if row.len() != header.len() {
-            return Err(ClassifiedReadError::FieldCount {
-                location: Location::line(source, line),
-                expected: header.len(),
-                found: row.len(),
-            });
-        }
         let fields = Fields {
             row: &row,
             columns: &columns,
