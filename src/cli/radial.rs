@@ -516,6 +516,18 @@ pub fn render_table(report: &RadialReport) -> String {
     }
     out.push_str(&table.to_string());
     out.push('\n');
+    let has_zeta = report
+        .integrals
+        .iter()
+        .any(|i| matches!(i.kind, IntegralKind::SpinOrbit { .. }));
+    if has_zeta {
+        // Measured in radial::integrals (observed/computed ζ for thirteen spectra).
+        out.push_str(
+            "ζ is the central-field value without core polarisation: the observed ζ of a neutral\n\
+             atom's valence p electron is 1.3–1.6 times it (--scale-zeta), of ions and p⁵ shells\n\
+             about 1 times it.\n",
+        );
+    }
     out
 }
 
