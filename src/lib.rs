@@ -16,11 +16,12 @@
 //! - [`levels`]: level tables (embedded reference levels), Ritz predictions, level optimisation.
 //! - [`angular`]: 3j and 6j symbols, Condon–Shortley c^k coefficients.
 //! - [`structure`]: the determinantal / LS intermediate-coupling level model.
-//! - [`radial`]: radial wavefunctions and Slater, spin–orbit and dipole integrals.
+//! - [`radial`]: Hartree–Fock radial wavefunctions, Slater, spin–orbit and dipole
+//!   integrals, and starting level models from them.
 //! - [`transitions`]: E1 selection rules, line strengths, gf and A values.
 //! - [`assign`]: candidate search, ranking, chance-coincidence probabilities, blends.
 //! - [`fit`]: least-squares fits of model parameters to observed levels.
-//! - [`report`]: terminal tables, CSV, JSON and SVG writers (return strings, never touch files).
+//! - [`report`]: terminal tables, CSV and JSON writers (return strings, never touch files).
 //! - [`cli`]: the command-line front end; the only module that reads or writes files.
 //!
 //! Energies are in cm⁻¹ throughout unless a name says otherwise (`_hartree`, `_ev`).
