@@ -178,3 +178,28 @@ fn bad_input_gives_a_clear_error() {
         text(&out.stderr)
     );
 }
+
+// Malformed-input check (common practice, no source): a file whose only accepted
+// row is a blend leaves nothing to optimise; the error counts the rows in words,
+// not as a debug dump of the selection.
+#[test]
+fn nothing_left_to_optimise_is_said_in_words() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("blend-only.csv");
+    std::fs::write(
+        &path,
+        "species,lower_configuration,lower_term,lower_J,upper_configuration,upper_term,upper_J,observed_wavenumber_cm1,observed_uncertainty_cm1,rank,flags\n\
+         He I,1s.2s,3S,1,1s.3p,3P*,0,25708.84,0.2,1,blend\n",
+    )
+    .unwrap();
+    let out = termsight(&["optimize", path.to_str().unwrap()]);
+    let stderr = text(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{stderr}");
+    assert!(stderr.contains("blend-only.csv"), "{stderr}");
+    assert!(
+        stderr.contains("1 classified rows and 0 unassigned")
+            && stderr.contains("1 accepted blends left out"),
+        "{stderr}"
+    );
+    assert!(!stderr.contains("Selection {"), "{stderr}");
+}

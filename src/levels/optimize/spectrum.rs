@@ -132,6 +132,18 @@ pub struct Selection {
     pub used: usize,
 }
 
+impl std::fmt::Display for Selection {
+    /// In words, for messages: "3 classified rows and 1 unassigned: 1 not
+    /// accepted, 2 accepted blends left out".
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(
+            f,
+            "{} classified rows and {} unassigned: {} not accepted, {} accepted blends left out",
+            self.classified_rows, self.unassigned_rows, self.not_accepted, self.blends_omitted
+        )
+    }
+}
+
 /// The whole optimisation.
 #[derive(Debug, Clone, PartialEq)]
 pub struct OptimizationReport {
@@ -149,7 +161,7 @@ pub struct OptimizationReport {
 pub enum SpectrumError {
     /// Nothing left after selection.
     #[error(
-        "no line is left to optimise: {0:?}; accept rows (rank 1, or an `accept` column), \
+        "no line is left to optimise ({0}); accept rows (rank 1, or an `accept` column), \
          or keep blends with --blends widen"
     )]
     NothingSelected(Selection),
