@@ -233,3 +233,29 @@ fn an_extreme_uncertainty_names_its_row() {
         assert!(!stderr.contains("could not be factored"), "{stderr}");
     }
 }
+
+// Malformed-input check (common practice, no source): a blend factor so large that
+// a widened uncertainty's weight vanishes is refused at the blend's row, not as
+// "line 0" of the internal problem.
+#[test]
+fn a_blend_factor_too_large_names_the_blend() {
+    let dir = tempfile::tempdir().unwrap();
+    let input = assigned(dir.path());
+    let out = termsight(&[
+        "optimize",
+        input.to_str().unwrap(),
+        "--blends",
+        "widen",
+        "--blend-factor",
+        "1e300",
+    ]);
+    let stderr = text(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains(&format!("{}:", input.to_str().unwrap()))
+            && stderr.contains(": column 'observed_uncertainty_cm1'")
+            && stderr.contains("--blend-factor"),
+        "{stderr}"
+    );
+    assert!(!stderr.contains("line 0"), "{stderr}");
+}

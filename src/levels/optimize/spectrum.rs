@@ -7,6 +7,7 @@ use std::collections::HashMap;
 use super::input::{ClassifiedLine, ClassifiedLines};
 use super::{LineConstraint, LineFit, OptimizeError, OptimizeProblem, optimize_levels};
 use crate::levels::LevelLabel;
+use crate::location::Location;
 use crate::notation::Species;
 
 /// What to do with accepted lines that carry the `blend` flag.
@@ -168,6 +169,21 @@ pub enum SpectrumError {
     /// The named reference level is in no line.
     #[error("the reference level {0} is not a level of any accepted line")]
     UnknownReference(LevelLabel),
+    /// A blend's uncertainty, widened by the blend factor, is so large that its
+    /// weight 1/u² vanishes.
+    #[error(
+        "{location}: the blend's uncertainty {uncertainty_cm1} cm-1 widened by \
+         --blend-factor {factor:e} has a weight 1/u² that is not a finite non-zero number; \
+         give a smaller factor"
+    )]
+    WidenedTooFar {
+        /// File, line and column of the blend.
+        location: Location,
+        /// Its uncertainty as read.
+        uncertainty_cm1: f64,
+        /// The blend factor.
+        factor: f64,
+    },
     /// The optimisation itself failed.
     #[error(transparent)]
     Optimize(#[from] OptimizeError),
@@ -190,7 +206,16 @@ pub fn optimize_classified(
         } else if line.blend {
             match options.blends {
                 BlendPolicy::Omit => selection.blends_omitted += 1,
-                BlendPolicy::Widen(_) => {
+                BlendPolicy::Widen(factor) => {
+                    let widened = line.uncertainty_cm1 * factor;
+                    if !(1.0 / (widened * widened)).is_normal() {
+                        return Err(SpectrumError::WidenedTooFar {
+                            location: Location::line(input.source.clone(), line.source_line)
+                                .column("observed_uncertainty_cm1"),
+                            uncertainty_cm1: line.uncertainty_cm1,
+                            factor,
+                        });
+                    }
                     selection.blends_widened += 1;
                     chosen.push((line, true));
                 }
