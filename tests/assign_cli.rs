@@ -428,3 +428,23 @@ fn an_overflowing_uncertainty_prints_no_nan() {
     assert!(out.status.success(), "{}", text(&out.stderr));
     assert!(!text(&out.stdout).contains("NaN"), "{}", text(&out.stdout));
 }
+
+// Malformed-input check (common practice, no source): naming the same species twice
+// with --species asks for it once; it was refused with "its origin is given twice;
+// each species may come from one level table or model only", though no table or
+// model was given.
+#[test]
+fn the_same_species_named_twice_is_matched_once() {
+    let example = example();
+    let once = termsight(&["assign", example.to_str().unwrap(), "--species", "He I"]);
+    let twice = termsight(&[
+        "assign",
+        example.to_str().unwrap(),
+        "--species",
+        "He I",
+        "--species",
+        "He I",
+    ]);
+    assert!(twice.status.success(), "{}", text(&twice.stderr));
+    assert_eq!(text(&once.stdout), text(&twice.stdout));
+}
