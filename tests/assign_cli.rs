@@ -398,3 +398,53 @@ fn skipped_rows_are_reported_and_the_rest_assigned() {
     assert_eq!(lines, vec![1, 3]);
     assert!(text(&out.stdout).contains("1 bad row skipped"));
 }
+
+// Malformed-input check (common practice, no source): an uncertainty so large that
+// its square overflows (1e300 cm-1 in the line list, 1e308 cm-1 in a level table)
+// must not print NaN as the chance probability.
+#[test]
+fn an_overflowing_uncertainty_prints_no_nan() {
+    let dir = tempfile::tempdir().unwrap();
+    let lines = dir.path().join("huge-u.csv");
+    std::fs::write(&lines, "wavenumber_cm1,uncertainty_cm1\n17000,1e300\n").unwrap();
+    let out = termsight(&["assign", lines.to_str().unwrap(), "--species", "He I"]);
+    assert!(out.status.success(), "{}", text(&out.stderr));
+    assert!(!text(&out.stdout).contains("NaN"), "{}", text(&out.stdout));
+
+    let levels = dir.path().join("huge-level-u.csv");
+    std::fs::write(
+        &levels,
+        "species,configuration,term,J,energy_cm1,uncertainty_cm1,source\n\
+         He I,1s.2p,3P°,2,169086.7664725,0.000001,x\n\
+         He I,1s.3d,3D,3,186101.5468,1e308,x\n",
+    )
+    .unwrap();
+    let out = termsight(&[
+        "assign",
+        example().to_str().unwrap(),
+        "--levels",
+        levels.to_str().unwrap(),
+    ]);
+    assert!(out.status.success(), "{}", text(&out.stderr));
+    assert!(!text(&out.stdout).contains("NaN"), "{}", text(&out.stdout));
+}
+
+// Malformed-input check (common practice, no source): naming the same species twice
+// with --species asks for it once; it was refused with "its origin is given twice;
+// each species may come from one level table or model only", though no table or
+// model was given.
+#[test]
+fn the_same_species_named_twice_is_matched_once() {
+    let example = example();
+    let once = termsight(&["assign", example.to_str().unwrap(), "--species", "He I"]);
+    let twice = termsight(&[
+        "assign",
+        example.to_str().unwrap(),
+        "--species",
+        "He I",
+        "--species",
+        "He I",
+    ]);
+    assert!(twice.status.success(), "{}", text(&twice.stderr));
+    assert_eq!(text(&once.stdout), text(&twice.stdout));
+}

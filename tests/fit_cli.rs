@@ -272,3 +272,24 @@ fn uncertainty_weights_report_chi_square() {
         assert!((level["weight"].as_f64().unwrap() - 100.0).abs() < 1e-3);
     }
 }
+
+// Malformed-input check (common practice, no source): a finite but absurd starting
+// value (1e308) makes the residuals overflow; the error says so in words and names
+// the parameter instead of printing the minimiser's internal state.
+#[test]
+fn an_overflowing_starting_value_is_named() {
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(EXAMPLE).unwrap();
+    let text = text.replacen("Eav = 193800.0", "Eav = 1e308", 1);
+    assert!(text.contains("1e308"));
+    let model = write(dir.path(), "huge.toml", &text);
+    let out = termsight(&["fit", &model, "--species", "He I", "--quiet"]);
+    assert_eq!(out.status.code(), Some(2));
+    let err = stderr(&out);
+    assert!(err.contains("huge.toml"), "{err}");
+    assert!(
+        err.contains("not finite") && err.contains("Eav@1s.5p"),
+        "{err}"
+    );
+    assert!(!err.contains("Numerical("), "{err}");
+}

@@ -122,3 +122,24 @@ fn broken_models_name_file_line_and_key() {
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr).contains("/nonexistent/model.toml"));
 }
+
+// Malformed-input check (common practice, no source): a model file with a byte
+// that is not UTF-8 is refused naming the file and the line of that byte.
+#[test]
+fn a_model_that_is_not_utf8_names_the_line() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("latin1.toml");
+    let mut text = std::fs::read(HE).unwrap();
+    let at = text.windows(3).position(|w| w == b"Eav").unwrap();
+    let line = 1 + text[..at].iter().filter(|&&b| b == b'\n').count();
+    text.insert(at, 0xff);
+    std::fs::write(&path, &text).unwrap();
+    let out = termsight(&["levels", path.to_str().unwrap()]);
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        err.contains(&format!("latin1.toml:{line}: ")) && err.contains("not valid UTF-8"),
+        "{err}"
+    );
+    assert!(out.stdout.is_empty());
+}

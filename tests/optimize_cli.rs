@@ -178,3 +178,84 @@ fn bad_input_gives_a_clear_error() {
         text(&out.stderr)
     );
 }
+
+// Malformed-input check (common practice, no source): a file whose only accepted
+// row is a blend leaves nothing to optimise; the error counts the rows in words,
+// not as a debug dump of the selection.
+#[test]
+fn nothing_left_to_optimise_is_said_in_words() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("blend-only.csv");
+    std::fs::write(
+        &path,
+        "species,lower_configuration,lower_term,lower_J,upper_configuration,upper_term,upper_J,observed_wavenumber_cm1,observed_uncertainty_cm1,rank,flags\n\
+         He I,1s.2s,3S,1,1s.3p,3P*,0,25708.84,0.2,1,blend\n",
+    )
+    .unwrap();
+    let out = termsight(&["optimize", path.to_str().unwrap()]);
+    let stderr = text(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{stderr}");
+    assert!(stderr.contains("blend-only.csv"), "{stderr}");
+    assert!(
+        stderr.contains("1 classified rows and 0 unassigned")
+            && stderr.contains("1 accepted blends left out"),
+        "{stderr}"
+    );
+    assert!(!stderr.contains("Selection {"), "{stderr}");
+}
+
+// Malformed-input check (common practice, no source): an uncertainty so small or
+// so large that its weight 1/u² overflows or vanishes is refused at its row and
+// column, not reported later as a failed factorisation of the normal equations.
+#[test]
+fn an_extreme_uncertainty_names_its_row() {
+    let dir = tempfile::tempdir().unwrap();
+    for (i, u) in ["1e-300", "1e300", "5e-324"].iter().enumerate() {
+        let path = dir.path().join(format!("extreme{i}.csv"));
+        std::fs::write(
+            &path,
+            format!(
+                "species,lower_configuration,lower_term,lower_J,upper_configuration,upper_term,upper_J,observed_wavenumber_cm1,observed_uncertainty_cm1\n\
+                 He I,1s.2s,3S,1,1s.3p,3P*,2,25708.59,0.2\n\
+                 He I,1s.2p,3P*,2,1s.3d,3D,3,17148.96,{u}\n"
+            ),
+        )
+        .unwrap();
+        let out = termsight(&["optimize", path.to_str().unwrap()]);
+        let stderr = text(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{stderr}");
+        assert!(
+            stderr.contains(&format!(
+                "extreme{i}.csv:3: column 'observed_uncertainty_cm1'"
+            )),
+            "{stderr}"
+        );
+        assert!(!stderr.contains("could not be factored"), "{stderr}");
+    }
+}
+
+// Malformed-input check (common practice, no source): a blend factor so large that
+// a widened uncertainty's weight vanishes is refused at the blend's row, not as
+// "line 0" of the internal problem.
+#[test]
+fn a_blend_factor_too_large_names_the_blend() {
+    let dir = tempfile::tempdir().unwrap();
+    let input = assigned(dir.path());
+    let out = termsight(&[
+        "optimize",
+        input.to_str().unwrap(),
+        "--blends",
+        "widen",
+        "--blend-factor",
+        "1e300",
+    ]);
+    let stderr = text(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{stderr}");
+    assert!(
+        stderr.contains(&format!("{}:", input.to_str().unwrap()))
+            && stderr.contains(": column 'observed_uncertainty_cm1'")
+            && stderr.contains("--blend-factor"),
+        "{stderr}"
+    );
+    assert!(!stderr.contains("line 0"), "{stderr}");
+}

@@ -197,3 +197,32 @@ fn model_out_into_a_missing_directory_fails_before_the_calculation() {
     );
     assert!(output.stdout.is_empty());
 }
+
+// Malformed-input check (common practice, no source): a scale factor out of range
+// is refused naming the very flag, not "--scale-…".
+#[test]
+fn a_scale_factor_out_of_range_names_its_flag() {
+    for flag in [
+        "--scale-slater",
+        "--scale-interaction",
+        "--scale-zeta",
+        "--scale-eav",
+    ] {
+        for value in ["0", "nan", "1e300", "-1"] {
+            let output = termsight(&[
+                "radial",
+                "--element",
+                "He",
+                "--config",
+                "1s2",
+                &format!("{flag}={value}"),
+            ]);
+            assert_eq!(output.status.code(), Some(2));
+            let message = String::from_utf8(output.stderr).unwrap();
+            assert!(
+                message.starts_with(&format!("termsight: error: {flag}: ")),
+                "{message}"
+            );
+        }
+    }
+}

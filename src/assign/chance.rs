@@ -41,6 +41,11 @@ pub fn chance_probability(
     if !(w > 0.0 && window_length_cm1 > 0.0) {
         return 0.0;
     }
+    if !(w.is_finite() && window_length_cm1.is_finite()) {
+        // An uncertainty so large that u² or the window overflows: any line
+        // would lie within it (ρ = n/∞ times w = ∞ would give NaN).
+        return 1.0;
+    }
     let density = others_in_window.max(1) as f64 / window_length_cm1;
     let p = -(-2.0 * density * w).exp_m1();
     p.clamp(0.0, 1.0)
@@ -76,6 +81,17 @@ mod tests {
             chance_probability(0.5, 0.1, 1, 100.0)
         );
         assert!(chance_probability(0.5, 0.1, 0, 100.0) > 0.0);
+    }
+
+    // Malformed-input check (common practice, no source): an uncertainty so large
+    // that u_c or the window overflows gives certain chance, not NaN.
+    #[test]
+    fn overflowing_uncertainty_gives_certain_chance() {
+        assert_eq!(
+            chance_probability(0.0, f64::INFINITY, 5, f64::INFINITY),
+            1.0
+        );
+        assert_eq!(chance_probability(1.0, 1e306, 5, f64::INFINITY), 1.0);
     }
 
     #[test]

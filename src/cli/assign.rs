@@ -251,13 +251,16 @@ fn predictions(
     models: &[PathBuf],
     model_uncertainty: Option<f64>,
 ) -> Result<Predictions, CliError> {
-    let wanted: Vec<Species> = species_names
-        .iter()
-        .map(|name| {
-            name.parse::<Species>()
-                .map_err(|e| CliError::Message(format!("--species: {e}")))
-        })
-        .collect::<Result<_, _>>()?;
+    let mut wanted: Vec<Species> = Vec::new();
+    for name in species_names {
+        let species = name
+            .parse::<Species>()
+            .map_err(|e| CliError::Message(format!("--species: {e}")))?;
+        // The same species named twice is asked for once (not "given twice").
+        if !wanted.contains(&species) {
+            wanted.push(species);
+        }
+    }
     let tables: Vec<LevelTable> = if level_files.is_empty() {
         if models.is_empty() || !wanted.is_empty() {
             compiled_tables(&wanted)?

@@ -11,7 +11,8 @@ use super::input::open_input;
 use super::output::{write_atomically, write_output};
 use crate::levels::LevelLabel;
 use crate::levels::optimize::{
-    BlendPolicy, ClassifiedLines, OptimizeOptions, optimize_classified, read_classified_lines,
+    BlendPolicy, ClassifiedLines, OptimizeOptions, SpectrumError, optimize_classified,
+    read_classified_lines,
 };
 use crate::notation::Species;
 use crate::report::{
@@ -122,8 +123,11 @@ pub fn run(args: OptimizeArgs) -> Result<(), CliError> {
         })
         .transpose()?;
     let input = read_input(&args, default_species)?;
-    let report = optimize_classified(&input, &options)
-        .map_err(|e| CliError::Message(format!("{}: {e}", input.source)))?;
+    let report = optimize_classified(&input, &options).map_err(|e| match e {
+        // Already names the file, line and column.
+        SpectrumError::WidenedTooFar { .. } => CliError::Message(e.to_string()),
+        _ => CliError::Message(format!("{}: {e}", input.source)),
+    })?;
     let context = OptimizeContext {
         source: &input.source,
         options: &options,

@@ -1,26 +1,68 @@
 //! Writing result files safely.
 
+use std::fs;
 use std::io::{self, Write};
-use std::path::Path;
+use std::path::{Path, PathBuf};
 
 use super::CliError;
 
 /// Write `bytes` to `path` through a temporary file in the same directory that is
 /// renamed into place only when complete: an interrupted run never leaves a
-/// partial output, and an existing file is replaced in one step.
+/// partial output, and an existing file is replaced in one step, keeping its
+/// permissions. A symbolic link is followed (the file it points to is replaced, not
+/// the link), and a path that is not a regular file (`/dev/null`, `/dev/stdout`, a
+/// named pipe) is written to in place rather than replaced.
 pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<(), CliError> {
     let io_error = |source| CliError::Io {
         path: path.display().to_string(),
         source,
     };
-    let dir = match path.parent() {
+    let existing = fs::metadata(path).ok();
+    if let Some(meta) = &existing {
+        if meta.is_dir() {
+            return Err(CliError::Message(format!(
+                "{}: is a directory; give a file name for the output",
+                path.display()
+            )));
+        }
+        if !meta.is_file() {
+            let mut file = fs::OpenOptions::new()
+                .write(true)
+                .open(path)
+                .map_err(io_error)?;
+            return file.write_all(bytes).map_err(io_error);
+        }
+    }
+    let is_link = fs::symlink_metadata(path).is_ok_and(|m| m.file_type().is_symlink());
+    let target: PathBuf = if is_link {
+        match fs::canonicalize(path) {
+            Ok(target) => target,
+            // A link to a file that does not exist yet: create it through the link.
+            Err(_) => return fs::write(path, bytes).map_err(io_error),
+        }
+    } else {
+        path.to_path_buf()
+    };
+    let dir = match target.parent() {
         Some(parent) if !parent.as_os_str().is_empty() => parent,
         _ => Path::new("."),
     };
-    let mut temp = tempfile::NamedTempFile::new_in(dir).map_err(io_error)?;
+    let mut builder = tempfile::Builder::new();
+    #[cfg(unix)]
+    {
+        // A new file gets the usual 0666 less the umask, not the temporary file's 0600.
+        use std::os::unix::fs::PermissionsExt;
+        builder.permissions(fs::Permissions::from_mode(0o666));
+    }
+    let mut temp = builder.tempfile_in(dir).map_err(io_error)?;
     temp.write_all(bytes).map_err(io_error)?;
+    if let Some(meta) = &existing {
+        temp.as_file()
+            .set_permissions(meta.permissions())
+            .map_err(io_error)?;
+    }
     temp.as_file().sync_all().map_err(io_error)?;
-    temp.persist(path).map_err(|e| io_error(e.error))?;
+    temp.persist(&target).map_err(|e| io_error(e.error))?;
     Ok(())
 }
 
@@ -51,6 +93,55 @@ mod tests {
         write_atomically(&path, b"second").unwrap();
         assert_eq!(std::fs::read_to_string(&path).unwrap(), "second");
         assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 1);
+    }
+
+    // Malformed-input checks (common practice, no source): an output path that is a
+    // symbolic link, a device or a directory must not be replaced by a plain file.
+    #[cfg(unix)]
+    #[test]
+    fn follows_a_symbolic_link_instead_of_replacing_it() {
+        let dir = tempfile::tempdir().unwrap();
+        let target = dir.path().join("target.csv");
+        let link = dir.path().join("link.csv");
+        std::fs::write(&target, "old").unwrap();
+        std::os::unix::fs::symlink(&target, &link).unwrap();
+        write_atomically(&link, b"new").unwrap();
+        assert!(
+            std::fs::symlink_metadata(&link)
+                .unwrap()
+                .file_type()
+                .is_symlink()
+        );
+        assert_eq!(std::fs::read_to_string(&target).unwrap(), "new");
+    }
+
+    #[cfg(unix)]
+    #[test]
+    fn writes_into_a_device_in_place() {
+        write_atomically(Path::new("/dev/null"), b"x").unwrap();
+        let meta = std::fs::metadata("/dev/null").unwrap();
+        assert!(!meta.is_file(), "/dev/null was replaced by a regular file");
+    }
+
+    #[cfg(unix)]
+    #[test]
+    fn keeps_the_permissions_of_a_replaced_file() {
+        use std::os::unix::fs::PermissionsExt;
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("out.csv");
+        std::fs::write(&path, "old").unwrap();
+        std::fs::set_permissions(&path, std::fs::Permissions::from_mode(0o640)).unwrap();
+        write_atomically(&path, b"new").unwrap();
+        let mode = std::fs::metadata(&path).unwrap().permissions().mode() & 0o777;
+        assert_eq!(mode, 0o640);
+    }
+
+    #[test]
+    fn refuses_a_directory_naming_it() {
+        let dir = tempfile::tempdir().unwrap();
+        let err = write_atomically(dir.path(), b"x").unwrap_err();
+        assert!(err.to_string().contains(&dir.path().display().to_string()));
+        assert!(dir.path().is_dir());
     }
 
     #[test]

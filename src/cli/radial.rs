@@ -230,6 +230,19 @@ impl Request {
             spin_orbit: args.scale_zeta,
             average_energy: args.scale_eav,
         };
+        // Name the flag that is out of range, not the whole family.
+        for (flag, value) in [
+            ("--scale-slater", args.scale_slater),
+            ("--scale-interaction", args.scale_interaction),
+            ("--scale-zeta", args.scale_zeta),
+            ("--scale-eav", args.scale_eav),
+        ] {
+            if !(value > 0.0 && value <= 2.0) {
+                return Err(CliError::Message(format!(
+                    "{flag}: the scale factor must lie in (0, 2], not {value}"
+                )));
+            }
+        }
         scales
             .validate()
             .map_err(|e| CliError::Message(format!("--scale-…: {e}")))?;

@@ -362,6 +362,25 @@ pub fn fit_levels(
                             .into(),
                     });
                 }
+                TerminationReason::Numerical(step) => {
+                    // Name the largest free parameter at the start: the usual cause
+                    // is a starting value so large that the residuals overflow.
+                    let largest = x
+                        .iter()
+                        .zip(&names)
+                        .max_by(|a, b| a.0.abs().total_cmp(&b.0.abs()))
+                        .map(|(value, name)| {
+                            format!("; the largest free parameter is {name} = {value:e}")
+                        })
+                        .unwrap_or_default();
+                    return Err(FitError::Diverged {
+                        problem: format!(
+                            "the residuals or their derivatives are not finite numbers \
+                             (in the minimiser's {step} step): check the model's starting \
+                             values for absurdly large ones{largest}"
+                        ),
+                    });
+                }
                 other => {
                     return Err(FitError::Diverged {
                         problem: format!("the minimiser stopped: {other:?}"),

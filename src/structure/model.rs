@@ -230,13 +230,22 @@ fn number(value: &DeValue<'_>) -> Option<f64> {
 
 /// Read a model from `reader`; `source` names it in errors.
 pub fn read_model(mut reader: impl BufRead, source: &str) -> Result<LoadedModel, ModelError> {
-    let mut text = String::new();
+    let mut bytes = Vec::new();
     reader
-        .read_to_string(&mut text)
+        .read_to_end(&mut bytes)
         .map_err(|error| ModelError::Read {
             source_name: source.to_string(),
             error,
         })?;
+    let text = String::from_utf8(bytes).map_err(|e| {
+        let valid = e.utf8_error().valid_up_to();
+        let prefix = String::from_utf8_lossy(&e.as_bytes()[..valid]);
+        Lines::new(source, &prefix).error(
+            valid,
+            "",
+            "the text is not valid UTF-8 (save the model as UTF-8)",
+        )
+    })?;
     parse_model(&text, source)
 }
 

@@ -287,6 +287,24 @@ impl Fields<'_> {
             .ok_or_else(|| self.bad(name, format!("'{text}' is not a positive number in cm-1")))
     }
 
+    /// A positive uncertainty whose weight 1/u² is an ordinary finite number
+    /// (about 1e-150 to 1e150 cm-1): beyond that the normal equations overflow.
+    fn uncertainty(&self, name: &str) -> Result<f64, ClassifiedReadError> {
+        let u = self.positive(name)?;
+        if (1.0 / (u * u)).is_normal() {
+            Ok(u)
+        } else {
+            Err(self.bad(
+                name,
+                format!(
+                    "'{}' is out of range: its weight 1/u² is not a finite non-zero number; \
+                     give an uncertainty between 1e-150 and 1e150 cm-1",
+                    self.text(name)
+                ),
+            ))
+        }
+    }
+
     fn label(&self, side: &str) -> Result<Option<LevelLabel>, ClassifiedReadError> {
         let column = |part: &str| format!("{side}_{part}");
         let parts = [
@@ -372,7 +390,7 @@ impl Fields<'_> {
             lower,
             upper,
             wavenumber_cm1: self.positive("observed_wavenumber_cm1")?,
-            uncertainty_cm1: self.positive("observed_uncertainty_cm1")?,
+            uncertainty_cm1: self.uncertainty("observed_uncertainty_cm1")?,
             rank: self.count("rank")?,
             blend: self.text("flags").split(';').any(|f| f.trim() == "blend"),
             accept: self.accept()?,

@@ -154,8 +154,12 @@ pub enum OptimizeError {
         /// 0-based line index.
         line: usize,
     },
-    /// A line's wavenumber or uncertainty is not a finite number, or the uncertainty is not positive.
-    #[error("line {line} has a wavenumber or uncertainty that is not a finite positive number")]
+    /// A line's wavenumber or uncertainty is not a finite number, or the uncertainty is
+    /// not positive or so extreme that its weight 1/u² is not a finite non-zero number.
+    #[error(
+        "line {line} has a wavenumber or uncertainty that is not a finite positive number \
+         (or an uncertainty whose weight 1/u² is out of range)"
+    )]
     BadNumber {
         /// 0-based line index.
         line: usize,
@@ -202,6 +206,7 @@ impl OptimizeProblem {
             if !line.wavenumber_cm1.is_finite()
                 || !line.uncertainty_cm1.is_finite()
                 || line.uncertainty_cm1 <= 0.0
+                || !(1.0 / (line.uncertainty_cm1 * line.uncertainty_cm1)).is_normal()
             {
                 return Err(OptimizeError::BadNumber { line: i });
             }

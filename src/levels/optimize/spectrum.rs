@@ -7,6 +7,7 @@ use std::collections::HashMap;
 use super::input::{ClassifiedLine, ClassifiedLines};
 use super::{LineConstraint, LineFit, OptimizeError, OptimizeProblem, optimize_levels};
 use crate::levels::LevelLabel;
+use crate::location::Location;
 use crate::notation::Species;
 
 /// What to do with accepted lines that carry the `blend` flag.
@@ -132,6 +133,18 @@ pub struct Selection {
     pub used: usize,
 }
 
+impl std::fmt::Display for Selection {
+    /// In words, for messages: "3 classified rows and 1 unassigned: 1 not
+    /// accepted, 2 accepted blends left out".
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        write!(
+            f,
+            "{} classified rows and {} unassigned: {} not accepted, {} accepted blends left out",
+            self.classified_rows, self.unassigned_rows, self.not_accepted, self.blends_omitted
+        )
+    }
+}
+
 /// The whole optimisation.
 #[derive(Debug, Clone, PartialEq)]
 pub struct OptimizationReport {
@@ -149,13 +162,28 @@ pub struct OptimizationReport {
 pub enum SpectrumError {
     /// Nothing left after selection.
     #[error(
-        "no line is left to optimise: {0:?}; accept rows (rank 1, or an `accept` column), \
+        "no line is left to optimise ({0}); accept rows (rank 1, or an `accept` column), \
          or keep blends with --blends widen"
     )]
     NothingSelected(Selection),
     /// The named reference level is in no line.
     #[error("the reference level {0} is not a level of any accepted line")]
     UnknownReference(LevelLabel),
+    /// A blend's uncertainty, widened by the blend factor, is so large that its
+    /// weight 1/u² vanishes.
+    #[error(
+        "{location}: the blend's uncertainty {uncertainty_cm1} cm-1 widened by \
+         --blend-factor {factor:e} has a weight 1/u² that is not a finite non-zero number; \
+         give a smaller factor"
+    )]
+    WidenedTooFar {
+        /// File, line and column of the blend.
+        location: Location,
+        /// Its uncertainty as read.
+        uncertainty_cm1: f64,
+        /// The blend factor.
+        factor: f64,
+    },
     /// The optimisation itself failed.
     #[error(transparent)]
     Optimize(#[from] OptimizeError),
@@ -178,7 +206,16 @@ pub fn optimize_classified(
         } else if line.blend {
             match options.blends {
                 BlendPolicy::Omit => selection.blends_omitted += 1,
-                BlendPolicy::Widen(_) => {
+                BlendPolicy::Widen(factor) => {
+                    let widened = line.uncertainty_cm1 * factor;
+                    if !(1.0 / (widened * widened)).is_normal() {
+                        return Err(SpectrumError::WidenedTooFar {
+                            location: Location::line(input.source.clone(), line.source_line)
+                                .column("observed_uncertainty_cm1"),
+                            uncertainty_cm1: line.uncertainty_cm1,
+                            factor,
+                        });
+                    }
                     selection.blends_widened += 1;
                     chosen.push((line, true));
                 }
