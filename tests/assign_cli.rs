@@ -400,8 +400,8 @@ fn skipped_rows_are_reported_and_the_rest_assigned() {
 }
 
 // Malformed-input check (common practice, no source): an uncertainty so large that
-// its square overflows (1e300 cm-1 in the line list, 1e308 cm-1 in a level table)
-// must not print NaN as the chance probability.
+// its square overflows must not print NaN as the chance probability (1e300 cm-1 in
+// the line list); in a level table (1e308 cm-1) it is refused at its row.
 #[test]
 fn an_overflowing_uncertainty_prints_no_nan() {
     let dir = tempfile::tempdir().unwrap();
@@ -425,8 +425,12 @@ fn an_overflowing_uncertainty_prints_no_nan() {
         "--levels",
         levels.to_str().unwrap(),
     ]);
-    assert!(out.status.success(), "{}", text(&out.stderr));
-    assert!(!text(&out.stdout).contains("NaN"), "{}", text(&out.stdout));
+    assert_eq!(out.status.code(), Some(2), "{}", text(&out.stderr));
+    assert!(
+        text(&out.stderr).contains("huge-level-u.csv:3: column 'uncertainty_cm1'"),
+        "{}",
+        text(&out.stderr)
+    );
 }
 
 // Malformed-input check (common practice, no source): naming the same species twice
