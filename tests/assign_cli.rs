@@ -401,15 +401,15 @@ fn skipped_rows_are_reported_and_the_rest_assigned() {
 
 // Malformed-input check (common practice, no source): an uncertainty so large that
 // its square overflows (1e300 cm-1 in the line list, 1e308 cm-1 in a level table)
-// must not print NaN as the chance probability.
+// is refused at its row and column instead of printing NaN as the chance probability
+// (the chance module's own test covers an overflowing --model-uncertainty).
 #[test]
 fn an_overflowing_uncertainty_prints_no_nan() {
+    assert_clear_error(
+        b"wavenumber_cm1,uncertainty_cm1\n17000,1e300\n",
+        &[":2: column 'uncertainty_cm1'", "'1e300' is too extreme"],
+    );
     let dir = tempfile::tempdir().unwrap();
-    let lines = dir.path().join("huge-u.csv");
-    std::fs::write(&lines, "wavenumber_cm1,uncertainty_cm1\n17000,1e300\n").unwrap();
-    let out = termsight(&["assign", lines.to_str().unwrap(), "--species", "He I"]);
-    assert!(out.status.success(), "{}", text(&out.stderr));
-    assert!(!text(&out.stdout).contains("NaN"), "{}", text(&out.stdout));
 
     let levels = dir.path().join("huge-level-u.csv");
     std::fs::write(
@@ -425,8 +425,12 @@ fn an_overflowing_uncertainty_prints_no_nan() {
         "--levels",
         levels.to_str().unwrap(),
     ]);
-    assert!(out.status.success(), "{}", text(&out.stderr));
-    assert!(!text(&out.stdout).contains("NaN"), "{}", text(&out.stdout));
+    assert_eq!(out.status.code(), Some(2), "{}", text(&out.stderr));
+    assert!(
+        text(&out.stderr).contains("huge-level-u.csv:3: column 'uncertainty_cm1'"),
+        "{}",
+        text(&out.stderr)
+    );
 }
 
 // Malformed-input check (common practice, no source): naming the same species twice

@@ -293,3 +293,30 @@ fn an_overflowing_starting_value_is_named() {
     );
     assert!(!err.contains("Numerical("), "{err}");
 }
+
+// Malformed-input check (common practice, no source): an uncertainty floor whose
+// square underflows (1e-300) gave a level of zero uncertainty an infinite weight and
+// the fit never ended; one whose square overflows (1e300) gave every level zero
+// weight. Both are refused naming the flag.
+#[test]
+fn an_uncertainty_floor_out_of_range_is_refused() {
+    for floor in ["1e-300", "1e300"] {
+        let out = termsight(&[
+            "fit",
+            EXAMPLE,
+            "--species",
+            "He I",
+            "--weights",
+            "uncertainty",
+            "--uncertainty-floor",
+            floor,
+            "--quiet",
+        ]);
+        assert_eq!(out.status.code(), Some(2), "{}", stderr(&out));
+        assert!(
+            stderr(&out).contains("--uncertainty-floor") && stderr(&out).contains("1e150"),
+            "{}",
+            stderr(&out)
+        );
+    }
+}

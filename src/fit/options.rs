@@ -71,6 +71,18 @@ impl FitOptions {
                 ),
             });
         }
+        // Its square must be an ordinary number: 1e-300 squares to 0, giving a level
+        // of zero uncertainty an infinite weight (the fit then never ends), and
+        // 1e300 squares to infinity, giving every level zero weight.
+        if let Weighting::Uncertainty { floor_cm1 } = weighting
+            && !(1.0 / (floor_cm1 * floor_cm1)).is_normal()
+        {
+            return Err(FitError::InvalidOption {
+                problem: format!(
+                    "the uncertainty floor must lie between 1e-150 and 1e150 cm⁻¹, not {floor_cm1:e}"
+                ),
+            });
+        }
         self.weighting = weighting;
         Ok(self)
     }

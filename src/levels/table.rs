@@ -297,6 +297,17 @@ fn read_row(
             ),
         )
     })?;
+    for (column, value) in [
+        ("energy_cm1", energy_cm1),
+        ("uncertainty_cm1", uncertainty_cm1),
+    ] {
+        if value.abs() > MAX_CM1 {
+            return Err(bad(
+                column,
+                format!("'{value:e}' is out of range: expected at most 1e150 cm-1 in size"),
+            ));
+        }
+    }
     Ok(Level {
         species,
         label,
@@ -311,6 +322,11 @@ fn read_row(
 pub const MAX_LEVEL_TABLE_BYTES: u64 = 64 << 20;
 
 /// A finite number, or `None`.
+/// The largest energy or uncertainty a level table may give, cm⁻¹: far beyond any
+/// atomic level, yet small enough that squares and sums of squares stay finite
+/// (1e300 would make the uncertainties of the predicted lines infinite).
+const MAX_CM1: f64 = 1e150;
+
 fn number(text: &str) -> Option<f64> {
     text.parse::<f64>().ok().filter(|v| v.is_finite())
 }
@@ -373,6 +389,25 @@ mod tests {
         );
         let e = read("He I,1s.2p,3P*,1,1.0\n").unwrap_err();
         assert_eq!(e.to_string(), "t.csv:2: 5 fields where the header has 7");
+    }
+
+    // Malformed-input check (common practice, no source): a finite but absurd energy
+    // or uncertainty (1e300: its square overflows) is refused at its line and column.
+    #[test]
+    fn absurdly_large_numbers_are_refused() {
+        let e = read("He I,1s.2p,3P*,1,1e300,0.1,x\n").unwrap_err();
+        assert!(
+            e.to_string()
+                .starts_with("t.csv:2: column 'energy_cm1': '1e300' is out of range"),
+            "{e}"
+        );
+        let e = read("He I,1s.2p,3P*,1,169086.77,1e308,x\n").unwrap_err();
+        assert!(
+            e.to_string()
+                .starts_with("t.csv:2: column 'uncertainty_cm1': '1e308' is out of range"),
+            "{e}"
+        );
+        assert!(read("He I,1s.2p,3P*,1,169086.77,1e150,x\n").is_ok());
     }
 
     #[test]

@@ -116,15 +116,20 @@ pub(crate) fn convert_row(
         wavenumber_cm1,
         options.air_formula,
     );
-    if !(uncertainty_cm1.is_finite() && uncertainty_cm1 > 0.0) {
+    // Its square must be an ordinary number too: the combined uncertainty and the
+    // chance probability square it (1e300 cm-1 would make them infinite).
+    let finite = uncertainty_cm1.is_finite() && uncertainty_cm1 > 0.0;
+    if !(finite && (1.0 / (uncertainty_cm1 * uncertainty_cm1)).is_normal()) {
         let text = match uncertainty_column {
             Some(column) => fields.get(column).to_string(),
             None => format!("{uncertainty} {uncertainty_unit}"),
         };
-        return Err((
-            uncertainty_column,
-            not_convertible(&text, "wavenumber uncertainty"),
-        ));
+        let what = if finite {
+            "wavenumber uncertainty's square"
+        } else {
+            "wavenumber uncertainty"
+        };
+        return Err((uncertainty_column, not_convertible(&text, what)));
     }
 
     let intensity = match layout.intensity {
