@@ -452,3 +452,26 @@ fn the_same_species_named_twice_is_matched_once() {
     assert!(twice.status.success(), "{}", text(&twice.stderr));
     assert_eq!(text(&once.stdout), text(&twice.stdout));
 }
+
+// Malformed-input check (common practice, no source): a model uncertainty whose
+// square overflows is refused, naming the flag, instead of printing inf.
+#[test]
+fn an_overflowing_model_uncertainty_is_refused() {
+    let model = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/examples/level-models/alkaline-earth-4s.toml"
+    );
+    let out = termsight(&[
+        "assign",
+        example().to_str().unwrap(),
+        "--model",
+        model,
+        "--model-uncertainty=1e300",
+    ]);
+    assert_eq!(out.status.code(), Some(2), "{}", text(&out.stderr));
+    assert!(
+        text(&out.stderr).contains("--model-uncertainty: give a number of cm⁻¹ from 0 to 1e150"),
+        "{}",
+        text(&out.stderr)
+    );
+}

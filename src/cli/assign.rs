@@ -306,10 +306,10 @@ fn predictions(
 /// the flag or else from the file.
 fn model_predictions_from(path: &Path, flag: Option<f64>) -> Result<Predictions, CliError> {
     if let Some(u) = flag
-        && !(u.is_finite() && u >= 0.0)
+        && !(0.0..=1e150).contains(&u)
     {
         return Err(CliError::Message(format!(
-            "--model-uncertainty: give a number of cm⁻¹ ≥ 0, not {u}"
+            "--model-uncertainty: give a number of cm⁻¹ from 0 to 1e150, not {u}"
         )));
     }
     let name = path.display().to_string();

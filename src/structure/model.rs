@@ -32,7 +32,7 @@
 //! ```
 //!
 //! - `species` (required): the spectrum, `Mg I`.
-//! - `model_uncertainty_cm1` (optional, ≥ 0): the standard uncertainty of the
+//! - `model_uncertainty_cm1` (optional, 0 to 1e150): the standard uncertainty of the
 //!   model's level energies, cm⁻¹, for matching its predicted lines against
 //!   observed ones (`termsight assign --model`).
 //! - `[[configuration]]`, one per configuration: `label` (a configuration as
@@ -275,14 +275,15 @@ pub fn parse_model(text: &str, source: &str) -> Result<LoadedModel, ModelError> 
                 );
             }
             "model_uncertainty_cm1" => {
+                // The bound keeps u² and its sums with line uncertainties finite.
                 let u = number(value.get_ref())
-                    .filter(|u| *u >= 0.0)
+                    .filter(|u| (0.0..=1e150).contains(u))
                     .ok_or_else(|| {
                         lines.error(
                             at,
                             "model_uncertainty_cm1",
-                            "expected a number of cm⁻¹ ≥ 0, the standard uncertainty of the \
-                             model's level energies",
+                            "expected a number of cm⁻¹ from 0 to 1e150, the standard \
+                             uncertainty of the model's level energies",
                         )
                     })?;
                 model_uncertainty_cm1 = Some(u);
@@ -975,6 +976,16 @@ between = ["3s2", "3p2"]
         ));
         assert!(
             e.starts_with("m.toml:3: key 'model_uncertainty_cm1'"),
+            "{e}"
+        );
+        // Malformed input: an uncertainty whose square overflows (common practice,
+        // no source).
+        let e = error(&MG.replace(
+            "species = \"Mg I\"\n",
+            "species = \"Mg I\"\nmodel_uncertainty_cm1 = 1e300\n",
+        ));
+        assert!(
+            e.starts_with("m.toml:3: key 'model_uncertainty_cm1'") && e.contains("1e150"),
             "{e}"
         );
     }
