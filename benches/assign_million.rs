@@ -18,6 +18,7 @@
 use std::io::Write;
 use std::time::Instant;
 
+use rand::{Rng, SeedableRng, rngs::StdRng};
 use termsight::assign::{MatchConfig, assign_lines};
 use termsight::levels::{
     Level, PredictedLine, Predictions, SelectionRules, SpeciesOrigin, TransitionFlags,
@@ -25,22 +26,9 @@ use termsight::levels::{
 use termsight::linelist::{ReadOptions, read_line_list};
 use termsight::notation::Species;
 
-/// SplitMix64 (Steele, Lea & Flood 2014): a seeded generator for the synthetic data.
-struct SplitMix64(u64);
-
-impl SplitMix64 {
-    fn next(&mut self) -> f64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        ((z ^ (z >> 31)) >> 11) as f64 / (1u64 << 53) as f64
-    }
-}
-
 /// Synthetic predictions: `n` lines spread uniformly over 10 000–50 000 cm⁻¹, with
 /// uncertainties log-uniform in `scale`·(0.001–0.05) cm⁻¹, all of one made-up species.
-fn predictions(n: usize, scale: f64, rng: &mut SplitMix64) -> Predictions {
+fn predictions(n: usize, scale: f64, rng: &mut StdRng) -> Predictions {
     let species: Species = "Fe I".parse().unwrap();
     let level = |label: &str, energy_cm1| Level {
         species,
@@ -55,8 +43,8 @@ fn predictions(n: usize, scale: f64, rng: &mut SplitMix64) -> Predictions {
             species,
             lower: 0,
             upper: 1,
-            wavenumber_cm1: 10_000.0 + 40_000.0 * rng.next(),
-            uncertainty_cm1: scale * 0.001 * 50f64.powf(rng.next()),
+            wavenumber_cm1: 10_000.0 + 40_000.0 * rng.random::<f64>(),
+            uncertainty_cm1: scale * 0.001 * 50f64.powf(rng.random::<f64>()),
             rules: SelectionRules::Ls,
             flags: TransitionFlags::default(),
             relative_strength: None,
@@ -72,20 +60,20 @@ fn predictions(n: usize, scale: f64, rng: &mut SplitMix64) -> Predictions {
 
 /// A line list file of `n` vacuum wavenumbers: half near a predicted line, half
 /// anywhere, uncertainties `scale`·(0.01–0.1) cm⁻¹.
-fn line_list_text(n: usize, scale: f64, predictions: &Predictions, rng: &mut SplitMix64) -> String {
+fn line_list_text(n: usize, scale: f64, predictions: &Predictions, rng: &mut StdRng) -> String {
     let mut text = String::from("wavenumber_cm1,uncertainty_cm1,intensity\n");
     let lines = predictions.lines();
     for i in 0..n {
-        let u = scale * 0.01 * 10f64.powf(rng.next());
+        let u = scale * 0.01 * 10f64.powf(rng.random::<f64>());
         let sigma = if i % 2 == 0 && !lines.is_empty() {
-            let pick = ((rng.next() * lines.len() as f64) as usize).min(lines.len() - 1);
-            lines[pick].wavenumber_cm1 + u * (2.0 * rng.next() - 1.0)
+            let pick = ((rng.random::<f64>() * lines.len() as f64) as usize).min(lines.len() - 1);
+            lines[pick].wavenumber_cm1 + u * (2.0 * rng.random::<f64>() - 1.0)
         } else {
-            10_000.0 + 40_000.0 * rng.next()
+            10_000.0 + 40_000.0 * rng.random::<f64>()
         };
         text.push_str(&format!(
             "{sigma:.4},{u:.4},{}\n",
-            (rng.next() * 1000.0).round()
+            (rng.random::<f64>() * 1000.0).round()
         ));
     }
     text
@@ -139,7 +127,7 @@ fn main() {
         .filter_map(|a| a.parse().ok())
         .nth(2)
         .unwrap_or(1.0);
-    let mut rng = SplitMix64(2024);
+    let mut rng = StdRng::seed_from_u64(2024);
 
     let predictions = predictions(n_predicted, scale, &mut rng);
     let text = line_list_text(n_observed, scale, &predictions, &mut rng);

@@ -20,36 +20,19 @@ use std::io::Write;
 use std::time::{Duration, Instant};
 
 use criterion::{Criterion, criterion_group, criterion_main};
+use rand::{Rng, SeedableRng, rngs::StdRng};
 use termsight::fit::{FitOptions, fit_levels};
 use termsight::levels::{self, embedded_table};
 use termsight::structure::model::{LoadedModel, Vary, parse_model};
 
 const TI_LIKE: &str = include_str!("../tests/data/ti-like-model.toml");
 
-/// SplitMix64 (Steele, Lea & Flood 2014): a seeded generator for the invented data.
-struct SplitMix(u64);
-
-impl SplitMix {
-    fn next(&mut self) -> u64 {
-        self.0 = self.0.wrapping_add(0x9e37_79b9_7f4a_7c15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
-        z ^ (z >> 31)
-    }
-
-    /// Uniform in [−1, 1).
-    fn symmetric(&mut self) -> f64 {
-        (self.next() >> 11) as f64 / (1u64 << 52) as f64 - 1.0
-    }
-}
-
 /// The Ti-like case: the starting model and 300 synthetic levels.
 fn ti_like() -> (LoadedModel, Vec<levels::Level>) {
     let mut loaded = parse_model(TI_LIKE, "ti-like.toml").unwrap();
     let values = loaded.model.values_for(&loaded.structure);
     let computed = loaded.structure.levels(&values).unwrap();
-    let mut random = SplitMix(20_261_202);
+    let mut random = StdRng::seed_from_u64(20_261_202);
     // Keep the lowest 300 (the highest levels of a spectrum are the ones an
     // analysis lacks).
     let table: Vec<levels::Level> = computed
@@ -62,7 +45,7 @@ fn ti_like() -> (LoadedModel, Vec<levels::Level>) {
             levels::Level {
                 species: loaded.model.species,
                 label: format!("{lead} {}", l.j).parse().unwrap(),
-                energy_cm1: l.energy_cm1 + 2.0 * random.symmetric(),
+                energy_cm1: l.energy_cm1 + 2.0 * random.random_range(-1.0..1.0),
                 uncertainty_cm1: 0.5,
                 source: "invented".into(),
             }
@@ -70,7 +53,7 @@ fn ti_like() -> (LoadedModel, Vec<levels::Level>) {
         .collect();
     for p in &mut loaded.model.parameters {
         if matches!(p.vary, Vary::Free) {
-            p.value *= 1.0 + 0.03 * random.symmetric();
+            p.value *= 1.0 + 0.03 * random.random_range(-1.0..1.0);
         }
     }
     // Tied values follow their leaders.

@@ -8,35 +8,22 @@ use std::hint::black_box;
 use std::time::Duration;
 
 use criterion::{Criterion, Throughput, criterion_group, criterion_main};
+use rand::{Rng, SeedableRng, rngs::StdRng};
 use termsight::linelist::{ReadOptions, read_line_list};
 
 const ROWS: usize = 1_000_000;
 
-/// SplitMix64 (Steele, Lea & Flood 2014): a seeded source of demo numbers, written
-/// out because the benchmark needs nothing more than uniform doubles.
-struct SplitMix64(u64);
-
-impl SplitMix64 {
-    fn next_unit(&mut self) -> f64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        ((z ^ (z >> 31)) >> 11) as f64 / (1u64 << 53) as f64
-    }
-}
-
 /// A demo scan: air wavelengths 200–1000 nm in increasing order, with uncertainties,
 /// intensities and a note column, in CSV.
 fn csv_air_wavelengths(rows: usize) -> String {
-    let mut rng = SplitMix64(2024);
+    let mut rng = StdRng::seed_from_u64(2024);
     let mut text =
         String::from("# generated demo scan\nwavelength_nm,uncertainty_nm,intensity,note\n");
     for i in 0..rows {
         // Steps of 0.0004–0.0012 nm: strictly increasing at the 5 decimals printed.
-        let lambda = 200.0 + 800.0 * (i as f64 + 0.5 * rng.next_unit()) / rows as f64;
-        let u = 0.0005 + 0.005 * rng.next_unit();
-        let intensity = (rng.next_unit() * 10_000.0).round();
+        let lambda = 200.0 + 800.0 * (i as f64 + 0.5 * rng.random::<f64>()) / rows as f64;
+        let u = 0.0005 + 0.005 * rng.random::<f64>();
+        let intensity = (rng.random::<f64>() * 10_000.0).round();
         let _ = writeln!(text, "{lambda:.5},{u:.4},{intensity},peak{i}");
     }
     text
@@ -44,11 +31,11 @@ fn csv_air_wavelengths(rows: usize) -> String {
 
 /// Wavenumbers in random order as whitespace columns, with a global uncertainty.
 fn whitespace_wavenumbers(rows: usize) -> String {
-    let mut rng = SplitMix64(7);
+    let mut rng = StdRng::seed_from_u64(7);
     let mut text = String::from("wavenumber_cm1   intensity\n");
     for _ in 0..rows {
-        let sigma = 10_000.0 + 40_000.0 * rng.next_unit();
-        let intensity = (rng.next_unit() * 10_000.0).round();
+        let sigma = 10_000.0 + 40_000.0 * rng.random::<f64>();
+        let intensity = (rng.random::<f64>() * 10_000.0).round();
         let _ = writeln!(text, "{sigma:.4}   {intensity}");
     }
     text

@@ -5,6 +5,7 @@ use std::io::Write;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output, Stdio};
 
+use rand::{RngCore, SeedableRng, rngs::StdRng};
 use termsight::assign::read_assignments;
 
 /// The shipped example line list.
@@ -269,16 +270,9 @@ fn missing_column() {
 
 #[test]
 fn a_hundred_megabytes_of_garbage() {
-    // Seeded pseudo-random bytes (SplitMix64 constants, Steele, Lea & Flood 2014).
-    let mut state: u64 = 0x5EED;
-    let mut garbage = Vec::with_capacity(100 << 20);
-    while garbage.len() < 100 << 20 {
-        state = state.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = state;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        garbage.extend_from_slice(&(z ^ (z >> 31)).to_le_bytes());
-    }
+    // Seeded pseudo-random bytes.
+    let mut garbage = vec![0u8; 100 << 20];
+    StdRng::seed_from_u64(0x5EED).fill_bytes(&mut garbage);
     assert_clear_error(&garbage, &[]);
 }
 

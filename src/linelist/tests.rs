@@ -4,6 +4,7 @@
 use std::io::{self, BufReader, Read};
 
 use proptest::prelude::*;
+use rand::{RngCore, SeedableRng, rngs::StdRng};
 
 use super::*;
 use crate::location::Location;
@@ -551,23 +552,16 @@ fn empty_and_header_only_inputs_have_no_lines() {
 
 // --- input that is not a line list ----------------------------------------------------
 
-/// Seeded pseudo-random bytes (SplitMix64, Steele, Lea & Flood 2014), counting how
-/// many were taken.
+/// Seeded pseudo-random bytes, counting how many were taken.
 struct Garbage {
-    state: u64,
+    rng: StdRng,
     remaining: usize,
 }
 
 impl Read for Garbage {
     fn read(&mut self, buf: &mut [u8]) -> io::Result<usize> {
         let n = buf.len().min(self.remaining);
-        for byte in buf.iter_mut().take(n) {
-            self.state = self.state.wrapping_add(0x9E37_79B9_7F4A_7C15);
-            let mut z = self.state;
-            z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-            z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-            *byte = (z ^ (z >> 31)) as u8;
-        }
+        self.rng.fill_bytes(&mut buf[..n]);
         self.remaining -= n;
         Ok(n)
     }
@@ -577,7 +571,7 @@ impl Read for Garbage {
 fn a_hundred_megabytes_of_garbage_fail_at_once() {
     // Random bytes: the first line is not UTF-8 (or not a header).
     let mut garbage = Garbage {
-        state: 42,
+        rng: StdRng::seed_from_u64(42),
         remaining: 100_000_000,
     };
     let result = read_line_list(
