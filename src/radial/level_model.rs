@@ -43,7 +43,10 @@ pub fn starting_model(
         .into_iter()
         .filter(|&(a, b)| !moves_one_electron_within_l(&configurations[a], &configurations[b]))
         .collect();
-    let structure = build(&labels, &candidates)?;
+    let structure =
+        LevelStructure::build(&labels, &candidates).map_err(|e| RadialError::LevelModel {
+            problem: e.to_string(),
+        })?;
     let interactions: Vec<(usize, usize)> = candidates
         .into_iter()
         .filter(|&(a, b)| {
@@ -53,7 +56,8 @@ pub fn starting_model(
                 .any(|p| p.scope == Scope::Interaction(a, b))
         })
         .collect();
-    let structure = build(&labels, &interactions)?;
+    // The pairs left out have no parameters, so the structure's parameter list is
+    // already that of the model with `interactions` alone.
 
     let mut parameters = Vec::with_capacity(structure.parameters().len());
     let mut missing = Vec::new();
@@ -166,15 +170,6 @@ fn pairs_with_interaction_integrals(integrals: &[RadialIntegral]) -> Vec<(usize,
 fn moves_one_electron_within_l(a: &Configuration, b: &Configuration) -> bool {
     matches!(replacement(a, b), Some((removed, added))
         if removed.len() == 1 && removed[0].l == added[0].l)
-}
-
-fn build(
-    configurations: &[Configuration],
-    interactions: &[(usize, usize)],
-) -> Result<LevelStructure, RadialError> {
-    LevelStructure::build(configurations, interactions).map_err(|e| RadialError::LevelModel {
-        problem: e.to_string(),
-    })
 }
 
 /// The computed integral that is parameter `radial` of `scope`.
