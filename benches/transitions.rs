@@ -11,7 +11,10 @@ use std::time::Duration;
 
 use criterion::{Criterion, criterion_group, criterion_main};
 use termsight::notation::Configuration;
-use termsight::structure::{LevelStructure, Radial};
+use termsight::structure::LevelStructure;
+
+mod common;
+use common::values;
 use termsight::transitions::{DipoleOperator, model_spectrum};
 
 fn model(name: &str) -> (Vec<Configuration>, Vec<(usize, usize)>) {
@@ -27,22 +30,6 @@ fn model(name: &str) -> (Vec<Configuration>, Vec<(usize, usize)>) {
         labels.iter().map(|l| l.parse().unwrap()).collect(),
         vec![(0, 1)],
     )
-}
-
-/// Invented values of realistic size (cm⁻¹) for every parameter.
-fn values(structure: &LevelStructure) -> Vec<f64> {
-    structure
-        .parameters()
-        .iter()
-        .enumerate()
-        .map(|(i, p)| match p.radial {
-            Radial::Average => 20000.0 * i as f64,
-            Radial::Direct { k, .. } => 90000.0 / k as f64,
-            Radial::Exchange { .. } => 8000.0,
-            Radial::SpinOrbit { .. } => 450.0,
-            Radial::Interaction { .. } => 12000.0,
-        })
-        .collect()
 }
 
 fn benches(c: &mut Criterion) {
