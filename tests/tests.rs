@@ -1,5 +1,6 @@
 //! Integration tests, built as one binary: one module per topic, shared helpers in
-//! `util`.
+//! `util`. This file holds no checks; each module names the source of its check
+//! values beside each check.
 
 mod angular_tables;
 mod assign_cli;
