@@ -121,7 +121,7 @@ fn ls_parents(configuration: &Configuration) -> Vec<(u32, u32, Option<u32>)> {
         .iter()
         .filter_map(|part| match part {
             ConfigPart::Intermediate(i) => i.term.as_ls().map(|t| (t.multiplicity, t.l, t.index)),
-            ConfigPart::Subshell(_) => None,
+            _ => None,
         })
         .collect()
 }

@@ -264,7 +264,7 @@ fn shortened(lower: &LevelLabel, upper: &LevelLabel) -> (String, String) {
             .iter()
             .filter(|p| match p {
                 ConfigPart::Subshell(s) => !common.contains(&(s.n, s.l)),
-                ConfigPart::Intermediate(_) => true,
+                _ => true,
             })
             .cloned()
             .collect();
