@@ -550,6 +550,7 @@ mod tests {
             energy_cm1: energy,
             uncertainty_cm1: 0.01,
             source: String::new(),
+            energy_status: Default::default(),
         }
     }
 
@@ -697,6 +698,7 @@ mod tests {
             energy_cm1: energy,
             uncertainty_cm1: 0.0001,
             source: String::new(),
+            energy_status: Default::default(),
         };
         let experimental = [
             ne("2s2.2p5.(2P°<1/2>).3s 2[1/2]° 1", 135888.7173),

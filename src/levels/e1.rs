@@ -71,7 +71,8 @@ pub struct TransitionFlags {
     ///
     /// Both jump flags are judged on the subshells written in the labels, parent
     /// terms ignored; neither is judged when the two labels hold different numbers
-    /// of electrons (closed shells written in one and not the other).
+    /// of electrons (closed shells written in one and not the other), when a label
+    /// has no configuration, or when a subshell's n is not given (`nd`).
     pub two_electron_jump: bool,
 }
 
@@ -142,6 +143,11 @@ enum Jump {
 /// of l to one of l ± 1 (or not judged: different electron counts), one electron
 /// with another Δl, or more than one electron.
 fn electron_jump(a: &LevelLabel, b: &LevelLabel) -> Jump {
+    // Not judged without configurations, or with a subshell of unknown n (`nd`).
+    let judged = |c: &crate::notation::Configuration| !c.is_empty() && c.is_fully_numbered();
+    if !judged(&a.configuration) || !judged(&b.configuration) {
+        return Jump::Allowed;
+    }
     let occupancy = |label: &LevelLabel| -> Vec<((u32, u32), i64)> {
         label
             .configuration
@@ -264,6 +270,24 @@ mod tests {
             &label("2s2.2p5.(2P°<3/2>).3s 2[3/2]° 1"),
         );
         assert_eq!(rules, SelectionRules::ParityAndJ);
+    }
+
+    #[test]
+    fn incomplete_labels_get_parity_and_j_rules_and_no_jump_flags() {
+        // W I levels without configuration, Si I 3s2 3p nd levels (NIST ASD exports,
+        // shared/reference-data): jumps cannot be judged, LS rules do not apply.
+        let (rules, flags) = classify(&label("5d4.6s2 5D 1"), &label("#3° 2"));
+        assert_eq!(rules, SelectionRules::ParityAndJ);
+        assert_eq!(flags, TransitionFlags::default());
+        let (_, flags) = classify(&label("3s2.3p2 3P 1"), &label("3s2.3p.nd #2° 2"));
+        assert_eq!(flags, TransitionFlags::default());
+        // Fe I a 5D – z 5F°: letters do not change the LS rules.
+        let (rules, flags) = classify(
+            &label("3d6.4s2 a 5D 4"),
+            &label("3d6.(5D).4s.4p.(3P°) z 5F° 5"),
+        );
+        assert_eq!(rules, SelectionRules::Ls);
+        assert!(!flags.intercombination && !flags.l_forbidden);
     }
 
     #[test]

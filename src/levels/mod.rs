@@ -44,5 +44,6 @@ pub use label::{LabelError, LevelLabel};
 pub use predicted::{PredictedLine, PredictionError, Predictions, SpeciesOrigin, SpeciesSummary};
 pub use ritz::{predict_from_table, ritz_wavenumber};
 pub use table::{
-    LEVEL_COLUMNS, Level, LevelTable, LevelTableError, MAX_LEVEL_TABLE_BYTES, read_level_table,
+    EnergyStatus, LEVEL_COLUMNS, Level, LevelTable, LevelTableError, MAX_LEVEL_TABLE_BYTES,
+    TableWarning, read_level_table,
 };

@@ -32,6 +32,7 @@ pub fn model_predictions(
             energy_cm1: l.energy_cm1,
             uncertainty_cm1: 0.0,
             source: format!("model {origin}"),
+            energy_status: Default::default(),
         })
         .collect();
     let strongest = spectrum

@@ -450,7 +450,7 @@ mod tests {
                 "a.csv:2: column 'observed_uncertainty_cm1'",
             ),
             (
-                "He I,1,1,1s.2p,1Q,1,1s.3d,1D,2,14970,0.1,",
+                "He I,1,1,1s.2p,1X,1,1s.3d,1D,2,14970,0.1,",
                 "a.csv:2: column 'lower_term'",
             ),
             (
