@@ -49,6 +49,8 @@ fn predictions(n: usize, scale: f64, rng: &mut StdRng) -> Predictions {
             rules: SelectionRules::Ls,
             flags: TransitionFlags::default(),
             relative_strength: None,
+            transition_probability: None,
+            bracketed_level: false,
         })
         .collect();
     let origin = SpeciesOrigin {

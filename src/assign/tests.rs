@@ -37,6 +37,8 @@ fn predictions(lines: &[(f64, f64)], model_u: f64) -> Predictions {
             rules: SelectionRules::Ls,
             flags: TransitionFlags::default(),
             relative_strength: None,
+            transition_probability: None,
+            bracketed_level: false,
         })
         .collect();
     let origins = vec![SpeciesOrigin {

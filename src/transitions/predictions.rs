@@ -53,6 +53,8 @@ pub fn model_predictions(
             rules: MODEL_RULES,
             flags: l.flags,
             relative_strength: Some(l.gf),
+            transition_probability: None,
+            bracketed_level: false,
         })
         .collect();
     Predictions::new(
