@@ -51,6 +51,7 @@ fn predictions(n: usize, scale: f64, rng: &mut StdRng) -> Predictions {
             relative_strength: None,
             transition_probability: None,
             bracketed_level: false,
+            published_line: false,
         })
         .collect();
     let origin = SpeciesOrigin {

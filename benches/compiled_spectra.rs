@@ -14,15 +14,14 @@ use std::process::Command;
 use std::time::{Duration, Instant};
 
 use termsight::assign::{MatchConfig, assign_lines};
-use termsight::levels::{EMBEDDED_TABLES, Predictions, predict_from_table};
+use termsight::levels::{EMBEDDED_TABLES, EmbeddedTable, Predictions, compiled_predictions};
 use termsight::linelist::{GivenPosition, ObservedLine};
 
-/// All compiled spectra, read and predicted.
+/// All compiled spectra, read and predicted (100 nm – 2.5 µm, with their transition
+/// probabilities), as `termsight assign` does by default.
 fn compiled() -> Predictions {
-    let sets = EMBEDDED_TABLES
-        .iter()
-        .map(|t| predict_from_table(&t.load().unwrap()).unwrap());
-    Predictions::combine(sets).unwrap()
+    let all: Vec<&EmbeddedTable> = EMBEDDED_TABLES.iter().collect();
+    compiled_predictions(&all).unwrap()
 }
 
 /// `runs` timings of `work`, sorted.
@@ -72,14 +71,19 @@ fn main() {
         "binary {binary}: {size} bytes ({:.1} MiB)",
         size as f64 / 1048576.0
     );
-    let example = Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/he-ne-teaching-tube/lines.csv");
+    let example =
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/he-ne-teaching-tube/lines.csv");
     let run = || {
         let out = Command::new(binary)
             .arg("assign")
             .arg(&example)
             .output()
             .expect("run termsight");
-        assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
     };
     run();
     println!(
@@ -99,10 +103,22 @@ fn main() {
             std::hint::black_box(compiled());
         }))
     );
+    println!(
+        "read the level tables alone (in-process): {}",
+        summary(&timings(10, || {
+            for t in EMBEDDED_TABLES {
+                std::hint::black_box(t.load().unwrap());
+            }
+        }))
+    );
     for n in [1_000usize, 100_000] {
         let observed = lines(n);
         let times = timings(5, || {
-            std::hint::black_box(assign_lines(&observed, &predictions, &MatchConfig::default()));
+            std::hint::black_box(assign_lines(
+                &observed,
+                &predictions,
+                &MatchConfig::default(),
+            ));
         });
         println!(
             "assign {n} lines against all compiled spectra: {}",

@@ -9,9 +9,9 @@ writes beside this script:
 
 - <Sym>.csv, the level table, columns species,configuration,term,J,energy_cm1,
   uncertainty_cm1,source;
-- <Sym>-lines.csv, when the export has transition probabilities: one row per E1 line
-  with a published A_ki, columns lower,upper,A_s1,accuracy, where lower and upper are
-  the 1-based data rows of the two levels in <Sym>.csv.
+- <Sym>-lines.csv, when the export has a line list: one row per classified E1 line,
+  columns lower,upper,A_s1,accuracy, where lower and upper are the 1-based data rows
+  of the two levels in <Sym>.csv and A_s1 is blank when no A_ki is published.
 
 What it does, and nothing else:
 - energies are copied digit for digit; a value the source prints in square brackets
@@ -32,8 +32,9 @@ What it does, and nothing else:
   reason: H I rows labelled by n alone (shell centroids, no term or J) and W I rows
   without J;
 - rows are sorted by energy (the export order is kept among equal energies);
-- a line row is kept when it is E1 (no `type=` in its note) and prints A_ki; a level
-  pair printed twice (once per multipole, as in the Stout files) keeps its E1 row.
+- a line row is kept when it is E1 (no `type=` in its note), with its A_ki when it
+  prints one; a level pair printed twice (once per multipole, as in the Stout files)
+  keeps its E1 row, and of two E1 rows the one with A_ki.
   Lines are matched to levels by label and by the energies printed with the line.
 Deterministic: a rerun writes the same bytes.
 """
@@ -206,13 +207,12 @@ def read_lines(directory, export, levels):
     stats = {"rows": len(rows), "without_A": 0, "not_E1": 0, "unmatched": 0}
     for row in rows:
         note = row["source_note"]
-        a = note_field(note, "Aki_s-1")
-        if not a:
-            stats["without_A"] += 1
-            continue
+        a = note_field(note, "Aki_s-1") or ""
         if note_field(note, "type"):
             stats["not_E1"] += 1
             continue
+        if not a:
+            stats["without_A"] += 1
 
         def find(side, key):
             label = (row[f"{side}_config"], row[f"{side}_term"], row[f"{side}_J"])
@@ -226,7 +226,7 @@ def read_lines(directory, export, levels):
         if lower is None or upper is None:
             stats["unmatched"] += 1
             continue
-        if (lower, upper) not in chosen:
+        if (lower, upper) not in chosen or (a and not chosen[(lower, upper)][0]):
             chosen[(lower, upper)] = (a, note_field(note, "acc") or "")
     return chosen, stats
 
@@ -250,12 +250,15 @@ def write(sym, species, export, lines_export, citation, levels, comments, lines,
     if lines_export is None:
         return
     with open(os.path.join(HERE, f"{sym}-lines.csv"), "w", encoding="utf-8", newline="") as f:
-        f.write(f"# {species} E1 transition probabilities A_ki (s-1, as printed). Source: {citation}.\n")
+        with_a = sum(1 for a, _ in lines.values() if a)
+        f.write(f"# {species} classified E1 lines and their transition probabilities A_ki (s-1, as"
+                f" printed). Source: {citation}.\n")
         f.write(f"# Made by make_tables.py from the export {lines_export}: {stats['rows']} rows,"
-                f" {stats['without_A']} without A_ki, {stats['not_E1']} not E1 (type E2, M1, ...),"
-                f" {stats['unmatched']} not matched to a level; {len(lines)} lines kept.\n")
-        f.write(f"# lower, upper: 1-based data rows of the levels in {sym}.csv;"
-                " accuracy: the ASD accuracy code, blank when the source prints none.\n")
+                f" {stats['not_E1']} not E1 (type E2, M1, ...) left out, {stats['without_A']} E1"
+                f" rows without A_ki, {stats['unmatched']} not matched to a level; {len(lines)}"
+                f" lines kept, {with_a} with A_ki.\n")
+        f.write(f"# lower, upper: 1-based data rows of the levels in {sym}.csv; A_s1 blank: no"
+                " A_ki published; accuracy: the ASD accuracy code, blank when none is printed.\n")
         writer = csv.writer(f, lineterminator="\n")
         writer.writerow(["lower", "upper", "A_s1", "accuracy"])
         for (lower, upper), (a, acc) in sorted(lines.items()):
@@ -269,7 +272,8 @@ def main(directory):
         if lines_export:
             lines, stats = read_lines(directory, lines_export, levels)
         write(sym, species, export, lines_export, citation, levels, comments, lines, stats)
-        print(f"{sym}: {len(levels)} levels, {len(comments)} rows as comments, {len(lines)} lines"
+        print(f"{sym}: {len(levels)} levels, {len(comments)} rows as comments, {len(lines)} lines, "
+              f"{sum(1 for a, _ in lines.values() if a)} with A"
               + (f" {stats}" if stats else ""))
 
 

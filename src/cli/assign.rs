@@ -10,8 +10,8 @@ use super::input::{open_input, read_levels_file};
 use super::output::write_output;
 use crate::assign::{MatchConfig, MatchProgress, assign_lines_with_progress, records};
 use crate::levels::{
-    EMBEDDED_TABLES, EmbeddedTable, Predictions, compiled_predictions,
-    embedded_stages, embedded_table, predict_from_table,
+    EMBEDDED_TABLES, EmbeddedTable, Predictions, compiled_predictions, embedded_stages,
+    embedded_table, predict_from_table,
 };
 use crate::linelist::{GlobalUncertainty, LineList, ReadOptions, read_line_list};
 use crate::notation::Species;
@@ -314,7 +314,8 @@ fn predictions(
         }
         chosen
     };
-    let mut sets = vec![compiled_predictions(&compiled).map_err(|e| CliError::Message(e.to_string()))?];
+    let mut sets =
+        vec![compiled_predictions(&compiled).map_err(|e| CliError::Message(e.to_string()))?];
     for table in &tables {
         let mut set = predict_from_table(table)
             .map_err(|e| CliError::Message(format!("{}: {e}", table.source)))?;
@@ -406,9 +407,12 @@ fn list_species(args: &AssignArgs) -> Result<(), CliError> {
                 .predictions()
                 .map_err(|e| CliError::Message(e.to_string()))?;
             let summary = predictions.species().first().cloned();
-            let (low, high) = levels.levels.iter().fold((f64::MAX, f64::MIN), |(lo, hi), l| {
-                (lo.min(l.energy_cm1), hi.max(l.energy_cm1))
-            });
+            let (low, high) = levels
+                .levels
+                .iter()
+                .fold((f64::MAX, f64::MIN), |(lo, hi), l| {
+                    (lo.min(l.energy_cm1), hi.max(l.energy_cm1))
+                });
             Ok(crate::report::CompiledSpectrum {
                 species: t.species.to_string(),
                 levels: levels.levels.len(),
@@ -507,7 +511,13 @@ mod tests {
 
     #[test]
     fn an_element_symbol_asks_for_every_compiled_stage() {
-        let p = predictions(&[], &["Ar".into(), "He I".into(), "Ar II".into()], &[], None).unwrap();
+        let p = predictions(
+            &[],
+            &["Ar".into(), "He I".into(), "Ar II".into()],
+            &[],
+            None,
+        )
+        .unwrap();
         let names: Vec<String> = p.species().iter().map(|s| s.species.to_string()).collect();
         assert_eq!(names, vec!["Ar I", "Ar II", "He I"]);
     }

@@ -16,7 +16,7 @@
 use std::collections::HashMap;
 
 use super::predicted::{AccuracyCode, PredictionError, Predictions, TransitionProbability};
-use super::ritz::{WavenumberRange, predict_lines};
+use super::ritz::{WavenumberRange, predict_levels};
 use super::table::{LevelTable, LevelTableError, read_level_table};
 use crate::location::Location;
 use crate::notation::Species;
@@ -30,9 +30,10 @@ pub struct EmbeddedTable {
     pub file: &'static str,
     /// The level table, CSV.
     pub text: &'static str,
-    /// The transition probabilities (`<file stem>-lines.csv`: columns
-    /// `lower,upper,A_s1,accuracy`, the levels by their data row in the level table),
-    /// when the source gives any.
+    /// The classified E1 lines of the source and their transition probabilities
+    /// (`<file stem>-lines.csv`: columns `lower,upper,A_s1,accuracy`, the levels by
+    /// their data row in the level table, A_s1 blank when none is published), when
+    /// the source has a line list.
     pub rates: Option<&'static str>,
 }
 
@@ -273,9 +274,12 @@ impl EmbeddedTable {
         read_level_table(self.text.as_bytes(), &self.source_name())
     }
 
-    /// The published transition probabilities, by the 0-based indices of the lower and
-    /// upper levels in the table's order (empty when the source gives none).
-    pub fn transition_rates(&self) -> Result<HashMap<(usize, usize), TransitionProbability>, RatesError> {
+    /// The published lines, by the 0-based indices of their two levels in the table's
+    /// order (lower index first), each with its transition probability when one is
+    /// published (empty when the source has no line list).
+    pub fn transition_rates(
+        &self,
+    ) -> Result<HashMap<(usize, usize), Option<TransitionProbability>>, RatesError> {
         let mut rates = HashMap::new();
         let Some(text) = self.rates else {
             return Ok(rates);
@@ -307,11 +311,16 @@ impl EmbeddedTable {
                     .and_then(|r| r.checked_sub(1))
                     .ok_or_else(|| bad(format!("'{text}' is not a level row")))
             };
-            let a_ki_s1 = a
-                .parse::<f64>()
-                .ok()
-                .filter(|v| v.is_finite() && *v > 0.0)
-                .ok_or_else(|| bad(format!("'{a}' is not a transition probability")))?;
+            let a_ki_s1 = if a.is_empty() {
+                None
+            } else {
+                Some(
+                    a.parse::<f64>()
+                        .ok()
+                        .filter(|v| v.is_finite() && *v > 0.0)
+                        .ok_or_else(|| bad(format!("'{a}' is not a transition probability")))?,
+                )
+            };
             let accuracy = if accuracy.is_empty() {
                 None
             } else {
@@ -323,11 +332,11 @@ impl EmbeddedTable {
             let (i, k) = (row(lower)?, row(upper)?);
             rates.insert(
                 (i.min(k), i.max(k)),
-                TransitionProbability {
+                a_ki_s1.map(|a_ki_s1| TransitionProbability {
                     a_ki_s1,
                     g_upper: 0,
                     accuracy,
-                },
+                }),
             );
         }
         Ok(rates)
@@ -338,7 +347,33 @@ impl EmbeddedTable {
     pub fn predictions(&self) -> Result<Predictions, CompiledError> {
         let table = self.load()?;
         let rates = self.transition_rates()?;
-        Ok(predict_lines(&table, Some(compiled_range()), &rates)?)
+        let warnings = table.warnings.len();
+        let mut predictions =
+            predict_levels(table.levels, &table.source, Some(compiled_range()), &rates)?;
+        let listed = predictions
+            .lines()
+            .iter()
+            .filter(|l| l.published_line)
+            .count();
+        if listed > 0 {
+            predictions.add_note(
+                self.spectrum(),
+                format!(
+                    "{listed} lines are in the source's line list (ranked without the \
+                     selection-rule penalty)"
+                ),
+            );
+        }
+        if warnings > 0 {
+            predictions.add_note(
+                self.spectrum(),
+                format!(
+                    "{warnings} levels kept as published with a label warning (term parity or J; \
+                     reference-levels/SOURCES.md)"
+                ),
+            );
+        }
+        Ok(predictions)
     }
 }
 
@@ -365,8 +400,9 @@ pub fn embedded_stages(atomic_number: u32) -> Vec<&'static EmbeddedTable> {
 
 /// The predictions of the given compiled spectra, combined into one set.
 pub fn compiled_predictions(tables: &[&EmbeddedTable]) -> Result<Predictions, CompiledError> {
+    use rayon::prelude::*;
     let sets = tables
-        .iter()
+        .par_iter()
         .map(|t| t.predictions())
         .collect::<Result<Vec<_>, _>>()?;
     Ok(Predictions::combine(sets)?)
@@ -395,7 +431,11 @@ mod tests {
             assert_eq!((lowest.energy_cm1, lowest.uncertainty_cm1), (0.0, 0.0));
             assert!(levels.levels.iter().all(|l| l.uncertainty_cm1 >= 0.0));
             let rates = table.transition_rates().unwrap_or_else(|e| panic!("{e}"));
-            assert!(rates.keys().all(|&(i, k)| i < levels.levels.len() && k < levels.levels.len()));
+            assert!(
+                rates
+                    .keys()
+                    .all(|&(i, k)| i < levels.levels.len() && k < levels.levels.len())
+            );
         }
     }
 
@@ -464,9 +504,15 @@ mod tests {
             assert_eq!(level.energy_cm1, energy);
             assert_eq!(level.uncertainty_cm1, uncertainty);
         }
-        let nitrogen = embedded_table("N I".parse().unwrap()).unwrap().load().unwrap();
+        let nitrogen = embedded_table("N I".parse().unwrap())
+            .unwrap()
+            .load()
+            .unwrap();
         let sextet = nitrogen
-            .find("N I".parse().unwrap(), &"2s.2p3.(5S°).3p 6P 3/2".parse().unwrap())
+            .find(
+                "N I".parse().unwrap(),
+                &"2s.2p3.(5S°).3p 6P 3/2".parse().unwrap(),
+            )
             .unwrap();
         assert_eq!(sextet.energy_status.offset, Some('x'));
     }

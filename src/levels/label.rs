@@ -226,17 +226,14 @@ impl FromStr for LevelLabel {
             });
         };
         let (term, configuration) = match rest.split_last() {
-            Some((term, before)) if term.parse::<Term>().is_ok() => {
-                match before.split_last() {
-                    Some((letter, configuration))
-                        if letter.len() == 1
-                            && letter.chars().all(|c| c.is_ascii_lowercase()) =>
-                    {
-                        (format!("{letter} {term}"), configuration.join(" "))
-                    }
-                    _ => (term.to_string(), before.join(" ")),
+            Some((term, before)) if term.parse::<Term>().is_ok() => match before.split_last() {
+                Some((letter, configuration))
+                    if letter.len() == 1 && letter.chars().all(|c| c.is_ascii_lowercase()) =>
+                {
+                    (format!("{letter} {term}"), configuration.join(" "))
                 }
-            }
+                _ => (term.to_string(), before.join(" ")),
+            },
             _ => (String::new(), rest.join(" ")),
         };
         LevelLabel::from_fields(&configuration, &term, j)

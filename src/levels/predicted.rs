@@ -44,6 +44,10 @@ pub struct PredictedLine {
     /// brackets by the compilation, [`super::EnergyStatus::bracketed`]).
     #[serde(default)]
     pub bracketed_level: bool,
+    /// True when the compilation's line list gives this line (classified and
+    /// observed or computed), with or without a transition probability.
+    #[serde(default)]
+    pub published_line: bool,
 }
 
 /// A published transition probability, with what intensity estimates need besides.
@@ -131,7 +135,10 @@ impl AccuracyCode {
 
     /// The upper bound of the relative uncertainty of A (infinite for E).
     pub fn relative_uncertainty(self) -> f64 {
-        Self::NAMES.iter().find(|n| n.0 == self).map_or(f64::INFINITY, |n| n.2)
+        Self::NAMES
+            .iter()
+            .find(|n| n.0 == self)
+            .map_or(f64::INFINITY, |n| n.2)
     }
 }
 
@@ -313,7 +320,10 @@ impl Predictions {
             summary.levels += 1;
         }
         for line in &lines {
-            if let Some(summary) = position.get(&line.species).and_then(|&i| species.get_mut(i)) {
+            if let Some(summary) = position
+                .get(&line.species)
+                .and_then(|&i| species.get_mut(i))
+            {
                 match line.rules {
                     SelectionRules::Ls => summary.ls_lines += 1,
                     SelectionRules::ParityAndJ => summary.parity_and_j_lines += 1,
@@ -323,7 +333,9 @@ impl Predictions {
                 }
             }
         }
-        lines.sort_by(|a, b| a.wavenumber_cm1.total_cmp(&b.wavenumber_cm1));
+        if !lines.is_sorted_by(|a, b| a.wavenumber_cm1 <= b.wavenumber_cm1) {
+            lines.sort_by(|a, b| a.wavenumber_cm1.total_cmp(&b.wavenumber_cm1));
+        }
         Ok(Predictions {
             levels,
             lines,

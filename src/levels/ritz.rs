@@ -3,7 +3,7 @@
 
 use std::collections::HashMap;
 
-use super::e1::{classify, is_e1_candidate};
+use super::e1::RuleKey;
 use super::predicted::{
     PredictedLine, PredictionError, Predictions, SpeciesOrigin, TransitionProbability,
 };
@@ -55,10 +55,11 @@ pub fn predict_from_table(table: &LevelTable) -> Result<Predictions, PredictionE
     predict_lines(table, None, &HashMap::new())
 }
 
-/// [`predict_from_table`], keeping only the lines within `range` (all when `None`),
-/// and giving each line between the levels of table indices (i, k), i < k, found in
-/// `rates` its published transition probability (with g_k = 2J + 1 of the upper
-/// level) and gf as its relative strength.
+/// [`predict_from_table`], keeping only the lines within `range` (all when `None`);
+/// a line between the levels of table indices (i, k), i < k, found in `published`
+/// (the line list of the source) is marked [`PredictedLine::published_line`] and gets
+/// the published transition probability, if any (with g_k = 2J + 1 of the upper
+/// level), and gf from it as its relative strength.
 ///
 /// The notes of each species' summary count what the outputs should say: levels
 /// with energies not from experiment, levels relative to an unknown offset and the
@@ -66,27 +67,56 @@ pub fn predict_from_table(table: &LevelTable) -> Result<Predictions, PredictionE
 pub fn predict_lines(
     table: &LevelTable,
     range: Option<WavenumberRange>,
-    rates: &HashMap<(usize, usize), TransitionProbability>,
+    published: &HashMap<(usize, usize), Option<TransitionProbability>>,
 ) -> Result<Predictions, PredictionError> {
+    predict_levels(table.levels.clone(), &table.source, range, published)
+}
+
+/// [`predict_lines`] on levels owned by the caller (no copy), `source` naming them.
+pub(crate) fn predict_levels(
+    levels: Vec<Level>,
+    source: &str,
+    range: Option<WavenumberRange>,
+    published: &HashMap<(usize, usize), Option<TransitionProbability>>,
+) -> Result<Predictions, PredictionError> {
+    let mut species_list: Vec<Species> = Vec::new();
+    for level in &levels {
+        if !species_list.contains(&level.species) {
+            species_list.push(level.species);
+        }
+    }
+    // The published lines of each level, by partner index.
+    let mut partners: Vec<Vec<(usize, Option<TransitionProbability>)>> =
+        vec![Vec::new(); levels.len()];
+    for (&(i, k), rate) in published {
+        if let Some(list) = partners.get_mut(i) {
+            list.push((k, *rate));
+        }
+    }
+    let keys: Vec<RuleKey> = levels.iter().map(|l| RuleKey::of(&l.label)).collect();
+    let complete: Vec<bool> = levels.iter().map(|l| l.label.is_complete()).collect();
     let mut lines = Vec::new();
     let mut counts: Vec<(Species, NoteCounts)> = Vec::new();
-    for species in table.species() {
-        let indices: Vec<usize> = (0..table.levels.len())
-            .filter(|&i| table.levels.get(i).is_some_and(|l| l.species == species))
+    for &species in &species_list {
+        let indices: Vec<usize> = (0..levels.len())
+            .filter(|&i| levels.get(i).is_some_and(|l| l.species == species))
             .collect();
         let mut count = NoteCounts::default();
         for &i in &indices {
-            if let Some(level) = table.levels.get(i) {
+            if let Some(level) = levels.get(i) {
                 count.bracketed += usize::from(level.energy_status.bracketed);
                 count.offset += usize::from(level.energy_status.offset.is_some());
             }
         }
         for (n, &i) in indices.iter().enumerate() {
+            let (Some(a), Some(key_a)) = (levels.get(i), keys.get(i)) else {
+                continue;
+            };
             for &k in indices.iter().skip(n + 1) {
-                let (Some(a), Some(b)) = (table.levels.get(i), table.levels.get(k)) else {
+                let (Some(b), Some(key_b)) = (levels.get(k), keys.get(k)) else {
                     continue;
                 };
-                if !is_e1_candidate(&a.label, &b.label) || a.energy_cm1 == b.energy_cm1 {
+                if !key_a.combines_with(key_b) || a.energy_cm1 == b.energy_cm1 {
                     continue;
                 }
                 if !a.energy_status.combines_with(b.energy_status) {
@@ -98,16 +128,23 @@ pub fn predict_lines(
                 } else {
                     ((k, b), (i, a))
                 };
-                let (wavenumber_cm1, uncertainty_cm1) = ritz_wavenumber(lower_level, upper_level);
+                let wavenumber_cm1 = upper_level.energy_cm1 - lower_level.energy_cm1;
                 if range.is_some_and(|r| !(r.low_cm1..=r.high_cm1).contains(&wavenumber_cm1)) {
                     continue;
                 }
-                let (rules, flags) = classify(&lower_level.label, &upper_level.label);
-                let transition_probability = rates.get(&(i, k)).map(|r| TransitionProbability {
-                    g_upper: upper_level.label.j.multiplicity(),
-                    ..*r
-                });
-                if !(lower_level.label.is_complete() && upper_level.label.is_complete()) {
+                let (_, uncertainty_cm1) = ritz_wavenumber(lower_level, upper_level);
+                let (rules, flags) = key_a.classify(key_b);
+                let listed = partners
+                    .get(i)
+                    .and_then(|list| list.iter().find(|(partner, _)| *partner == k));
+                let transition_probability =
+                    listed.and_then(|(_, r)| *r).map(|r| TransitionProbability {
+                        g_upper: upper_level.label.j.multiplicity(),
+                        ..r
+                    });
+                if !(complete.get(i).copied().unwrap_or(false)
+                    && complete.get(k).copied().unwrap_or(false))
+                {
                     count.incomplete += 1;
                 }
                 lines.push(PredictedLine {
@@ -122,21 +159,21 @@ pub fn predict_lines(
                     transition_probability,
                     bracketed_level: lower_level.energy_status.bracketed
                         || upper_level.energy_status.bracketed,
+                    published_line: listed.is_some(),
                 });
             }
         }
         counts.push((species, count));
     }
-    let origins = table
-        .species()
+    let origins = species_list
         .into_iter()
         .map(|species| SpeciesOrigin {
             species,
-            origin: format!("Ritz wavenumbers from {}", table.source),
+            origin: format!("Ritz wavenumbers from {source}"),
             model_uncertainty_cm1: 0.0,
         })
         .collect();
-    let mut predictions = Predictions::new(table.levels.clone(), lines, origins)?;
+    let mut predictions = Predictions::new(levels, lines, origins)?;
     for (species, count) in counts {
         for note in count.notes() {
             predictions.add_note(species, note);
@@ -231,10 +268,17 @@ mod tests {
             match embedded.species {
                 // Ne I and Ar I excited levels are in pair coupling; only the ground
                 // level is LS (NIST ASD 2014 labels), so no line is between two LS labels.
-                "Ne I" | "Ar I" => assert_eq!(summary.ls_lines, 0, "{}", embedded.species),
-                // Hg I mixes LS labels and pair-coupled 5d9 6s2 nl levels.
-                "Hg I" => assert!(summary.ls_lines > 0 && summary.parity_and_j_lines > 0),
-                _ => assert_eq!(summary.parity_and_j_lines, 0, "{}", embedded.species),
+                // Ne I: only the ground level is LS (NIST ASD 2014 labels).
+                "Ne I" => assert_eq!(summary.ls_lines, 0, "{}", embedded.species),
+                // He I, H I, Li I, C II, O I and the alkalis and alkaline earth ions
+                // are all in LS labels (NIST ASD tables).
+                "H I" | "He I" | "Li I" | "C II" | "O I" | "Mg II" | "Ca II" => {
+                    assert_eq!(summary.parity_and_j_lines, 0, "{}", embedded.species)
+                }
+                // The others mix LS labels with pair-coupled, jj or incomplete ones
+                // (Hg I 5d9 6s2 nl, Ar I 3p5 nl, Fe I energy-named levels, W I levels
+                // without configuration), or are all pair-coupled but the ground.
+                _ => assert!(summary.parity_and_j_lines > 0, "{}", embedded.species),
             }
             for line in p.lines() {
                 let (lower, upper) = p.levels_of(line).unwrap();

@@ -523,9 +523,21 @@ mod tests {
         assert_eq!(t.levels.len(), 3);
         let w: Vec<String> = t.warnings.iter().map(|w| w.to_string()).collect();
         assert_eq!(w.len(), 3, "{w:?}");
-        assert!(w[0].starts_with("t.csv:2: column 'term': term 3P is even"), "{}", w[0]);
-        assert!(w[1].starts_with("t.csv:3: column 'J': J = 3 is not possible"), "{}", w[1]);
-        assert!(w[2].starts_with("t.csv:4: column 'energy_cm1': the energy -5"), "{}", w[2]);
+        assert!(
+            w[0].starts_with("t.csv:2: column 'term': term 3P is even"),
+            "{}",
+            w[0]
+        );
+        assert!(
+            w[1].starts_with("t.csv:3: column 'J': J = 3 is not possible"),
+            "{}",
+            w[1]
+        );
+        assert!(
+            w[2].starts_with("t.csv:4: column 'energy_cm1': the energy -5"),
+            "{}",
+            w[2]
+        );
     }
 
     #[test]

@@ -547,8 +547,8 @@ fn from_roman(text: &str) -> Option<u32> {
 #[cfg(test)]
 mod tests {
     use super::super::*;
-    use proptest::test_runner::Config as ProptestConfig;
     use proptest::prelude::*;
+    use proptest::test_runner::Config as ProptestConfig;
 
     #[test]
     fn reads_the_reference_table_notation() {
@@ -664,19 +664,35 @@ mod tests {
         assert_eq!("1*".parse::<Term>().unwrap().parity(), Parity::Odd);
         let configs = [
             ("3d6.(5D).4s (6D).5p", "3d6.(5D).4s.(6D).5p", Parity::Odd),
-            ("3s2.3p.(2P*<1/2>).6p<1/2>", "3s2.3p.(2P°<1/2>).6p<1/2>", Parity::Even),
+            (
+                "3s2.3p.(2P*<1/2>).6p<1/2>",
+                "3s2.3p.(2P°<1/2>).6p<1/2>",
+                Parity::Even,
+            ),
             ("3s2.3p.nd", "3s2.3p.nd", Parity::Odd),
             ("3p6.4s.np", "3p6.4s.np", Parity::Odd),
             ("2s2.2p2.(3P).4f D", "2s2.2p2.(3P).4f D", Parity::Odd),
             ("3s.3p.(3P*).8p?", "3s.3p.(3P°).8p?", Parity::Even),
-            ("2p5.(2P*<1/2>).3s2.9s<1/2>?", "2p5.(2P°<1/2>).3s2.9s<1/2>?", Parity::Odd),
+            (
+                "2p5.(2P*<1/2>).3s2.9s<1/2>?",
+                "2p5.(2P°<1/2>).3s2.9s<1/2>?",
+                Parity::Odd,
+            ),
             (
                 "2p5.(2P*).3s.3p.(3P*) (2S<1/2>).4p?",
                 "2p5.(2P°).3s.3p.(3P°).(2S<1/2>).4p?",
                 Parity::Odd,
             ),
-            ("3d6.(3F2).4s.4p.(3P*)", "3d6.(3F#2).4s.4p.(3P°)", Parity::Odd),
-            ("3d9.4s.(3D<1>).4f<5/2>", "3d9.4s.(3D<1>).4f<5/2>", Parity::Odd),
+            (
+                "3d6.(3F2).4s.4p.(3P*)",
+                "3d6.(3F#2).4s.4p.(3P°)",
+                Parity::Odd,
+            ),
+            (
+                "3d9.4s.(3D<1>).4f<5/2>",
+                "3d9.4s.(3D<1>).4f<5/2>",
+                Parity::Odd,
+            ),
             ("3d6.(3P2<2>).4f", "3d6.(3P#2<2>).4f", Parity::Odd),
         ];
         for (asd, ours, parity) in configs {
@@ -822,9 +838,9 @@ mod tests {
                 .map(|(i, _)| i)
                 .collect();
             let lk_placed = coupled.len() <= 1
-                && coupled.iter().all(|&i| {
-                    i > 0 && parts.get(i - 1).is_some_and(|p| p.electrons().is_some())
-                });
+                && coupled
+                    .iter()
+                    .all(|&i| i > 0 && parts.get(i - 1).is_some_and(|p| p.electrons().is_some()));
             (distinct && marks_placed && lk_placed).then_some(Configuration { parts })
         })
     }

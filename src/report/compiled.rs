@@ -45,10 +45,7 @@ pub fn compiled_spectra_table(rows: &[CompiledSpectrum]) -> String {
             row.levels.to_string(),
             row.lines.to_string(),
             row.lines_with_transition_probability.to_string(),
-            format!(
-                "{:.0}–{:.0}",
-                row.lowest_level_cm1, row.highest_level_cm1
-            ),
+            format!("{:.0}–{:.0}", row.lowest_level_cm1, row.highest_level_cm1),
             format!("reference-levels/{}", row.file),
         ]);
     }

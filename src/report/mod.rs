@@ -220,7 +220,10 @@ impl AssignReport<'_> {
             line.push_str(&format!("); {}.", s.rules_sentence()));
             for note in &s.notes {
                 let mut chars = note.chars();
-                let first: String = chars.next().map(|c| c.to_uppercase().collect()).unwrap_or_default();
+                let first: String = chars
+                    .next()
+                    .map(|c| c.to_uppercase().collect())
+                    .unwrap_or_default();
                 line.push_str(&format!(" {first}{}.", chars.as_str()));
             }
             lines.push(line);

@@ -78,7 +78,10 @@ mod tests {
         // data help uses the same factor): at λ = 5000 Å, gA = 1e8 s⁻¹ gives 0.3748.
         let sigma = 1e8 / 5000.0;
         let gf = gf_from_ga(1e8, sigma);
-        assert!((gf / (1.4992e-16 * 5000.0f64.powi(2) * 1e8) - 1.0).abs() < 1e-4, "{gf}");
+        assert!(
+            (gf / (1.4992e-16 * 5000.0f64.powi(2) * 1e8) - 1.0).abs() < 1e-4,
+            "{gf}"
+        );
     }
 
     #[test]
