@@ -51,7 +51,7 @@ fn predictions(n: usize, scale: f64, rng: &mut StdRng) -> Predictions {
             relative_strength: None,
             transition_probability: None,
             bracketed_level: false,
-            published_line: false,
+            listing: Default::default(),
         })
         .collect();
     let origin = SpeciesOrigin {

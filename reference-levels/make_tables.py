@@ -15,8 +15,8 @@ writes beside this script:
 
 What it does, and nothing else:
 - energies are copied digit for digit; a value the source prints in square brackets
-  (not from experiment) is written in brackets, `[87846.9]`, and a value relative to
-  an unknown offset keeps its `+x`, `142080.75+x`;
+  (not from experiment) gets `bracketed` in the column energy_status, and a value
+  relative to an unknown offset gets `+x` there (both: `bracketed +x`);
 - uncertainty_cm1 is one unit in the last printed decimal (the exports print no level
   uncertainties), and 0 for the ground level, the zero of the scale by definition;
 - odd parity, printed '*' in the exports, is written '°' (termsight's notation; its
@@ -174,7 +174,8 @@ def read_levels(directory, sym, species, export, tag):
             "configuration": odd_mark(config),
             "term": odd_mark(term),
             "J": j,
-            "energy_cm1": printed,
+            "energy_cm1": NUMBER.search(printed.replace("[", "")).group(0),
+            "energy_status": " ".join(m for m, on in (("bracketed", bracketed), ("+x", offset)) if on),
             "uncertainty_cm1": "0" if ground else last_decimal_unit(printed),
             "notes": notes,
         })
@@ -235,18 +236,19 @@ def write(sym, species, export, lines_export, citation, levels, comments, lines,
     with open(os.path.join(HERE, f"{sym}.csv"), "w", encoding="utf-8", newline="") as f:
         f.write(f"# {species} levels. Source: {citation}.\n")
         f.write(f"# Made by make_tables.py from the export {export}; see SOURCES.md.\n")
-        f.write("# energy_cm1 as printed: [value] = not from experiment, value+x = relative to an"
-                " unknown offset x; uncertainty_cm1 = one unit in the last printed decimal (no"
-                " level uncertainties are printed), 0 for the ground level.\n")
+        f.write("# energy_cm1 as printed; energy_status: bracketed = printed in brackets (not from"
+                " experiment), +x = relative to an unknown offset x; uncertainty_cm1 = one unit in"
+                " the last printed decimal (no level uncertainties are printed), 0 for the ground"
+                " level.\n")
         for comment in comments:
             f.write(f"# {comment}\n")
         writer = csv.writer(f, lineterminator="\n")
         writer.writerow(["species", "configuration", "term", "J", "energy_cm1", "uncertainty_cm1",
-                         "source"])
+                         "source", "energy_status"])
         for level in levels:
             writer.writerow([species, level["configuration"], level["term"], level["J"],
                              level["energy_cm1"], level["uncertainty_cm1"],
-                             "; ".join(level["notes"])])
+                             "; ".join(level["notes"]), level["energy_status"]])
     if lines_export is None:
         return
     with open(os.path.join(HERE, f"{sym}-lines.csv"), "w", encoding="utf-8", newline="") as f:

@@ -12,7 +12,7 @@ use std::collections::HashMap;
 
 use termsight::assign::{MatchConfig, assign_lines, records};
 use termsight::levels::{
-    EMBEDDED_TABLES, EmbeddedTable, Level, LevelLabel, Predictions, compiled_predictions,
+    EMBEDDED_TABLES, EmbeddedTable, Level, LevelLabel, Listing, Predictions, compiled_predictions,
 };
 use termsight::linelist::{ReadOptions, read_line_list};
 use termsight::notation::Species;
@@ -263,7 +263,7 @@ fn check_lines(species: &str, lines_file: &str) -> Checked {
         assert_eq!(row["medium"], medium.name(), "{species} {description}");
         // A_ki carried unchanged, with g_k = 2J_k + 1.
         let published_a: f64 = a.parse().unwrap();
-        assert!(line.published_line, "{species} {description}");
+        assert_eq!(line.listing, Listing::Listed, "{species} {description}");
         let carried = line
             .transition_probability
             .unwrap_or_else(|| panic!("{species} {description}: no A_ki"));

@@ -18,7 +18,7 @@
 
 use std::collections::BTreeMap;
 
-use crate::levels::Predictions;
+use crate::levels::{Listing, Predictions};
 
 /// Predicted lines of one uncertainty class, sorted by wavenumber.
 #[derive(Debug, Default)]
@@ -31,9 +31,10 @@ struct UncertaintyClass {
     uncertainties: Vec<f64>,
     /// Index of each line in `Predictions::lines()`.
     lines: Vec<u32>,
-    /// How many non-rigorous selection rules each line breaks, counted 0 for a line
-    /// the compilation lists (kept here so that ranking needs no look-up in the full
-    /// prediction list).
+    /// How many non-rigorous selection rules each line counts as breaking in
+    /// ranking: 0 for a line its compiled source lists, one more than it breaks for
+    /// one the source does not list (kept here so that ranking needs no look-up in
+    /// the full prediction list).
     broken_rules: Vec<u8>,
 }
 
@@ -126,13 +127,14 @@ impl CandidateIndex {
             class.wavenumbers.push(line.wavenumber_cm1);
             class.uncertainties.push(u);
             class.lines.push(index as u32);
-            // A line that the compilation lists is a known line: the rule penalty, a
-            // prior against lines too weak to be seen, is not applied to it (its
-            // flags are still reported).
-            let broken = if line.published_line {
-                0
-            } else {
-                line.flags.broken()
+            // The rule penalty is a prior against lines too weak to be seen. A line
+            // that the compiled spectrum's source lists is known to be seen: no
+            // penalty (its flags are still reported). One it does not list is a
+            // Ritz combination the compilation does not report: one rule more.
+            let broken = match line.listing {
+                Listing::Listed => 0,
+                Listing::NotListed => line.flags.broken() + 1,
+                Listing::NotConsulted => line.flags.broken(),
             };
             class.broken_rules.push(broken);
         }

@@ -39,7 +39,7 @@ fn predictions(lines: &[(f64, f64)], model_u: f64) -> Predictions {
             relative_strength: None,
             transition_probability: None,
             bracketed_level: false,
-            published_line: false,
+            listing: Default::default(),
         })
         .collect();
     let origins = vec![SpeciesOrigin {

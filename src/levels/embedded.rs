@@ -349,18 +349,24 @@ impl EmbeddedTable {
         let rates = self.transition_rates()?;
         let warnings = table.warnings.len();
         let mut predictions =
-            predict_levels(table.levels, &table.source, Some(compiled_range()), &rates)?;
+            predict_levels(
+            table.levels,
+            &table.source,
+            Some(compiled_range()),
+            Some(&rates),
+        )?;
         let listed = predictions
             .lines()
             .iter()
-            .filter(|l| l.published_line)
+            .filter(|l| l.listing == super::predicted::Listing::Listed)
             .count();
         if listed > 0 {
             predictions.add_note(
                 self.spectrum(),
                 format!(
                     "{listed} lines are in the source's line list (ranked without the \
-                     selection-rule penalty)"
+                     selection-rule penalty; the other lines ranked as if breaking one rule \
+                     more)"
                 ),
             );
         }

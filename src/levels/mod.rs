@@ -47,7 +47,7 @@ pub use embedded::{
 };
 pub use label::{LabelError, LevelLabel};
 pub use predicted::{
-    AccuracyCode, PredictedLine, PredictionError, Predictions, SpeciesOrigin, SpeciesSummary,
+    AccuracyCode, Listing, PredictedLine, PredictionError, Predictions, SpeciesOrigin, SpeciesSummary,
     TransitionProbability,
 };
 pub use ritz::{WavenumberRange, predict_from_table, predict_lines, ritz_wavenumber};

@@ -44,10 +44,23 @@ pub struct PredictedLine {
     /// brackets by the compilation, [`super::EnergyStatus::bracketed`]).
     #[serde(default)]
     pub bracketed_level: bool,
-    /// True when the compilation's line list gives this line (classified and
-    /// observed or computed), with or without a transition probability.
+    /// Whether the source's line list gives this line (classified, observed or
+    /// computed), with or without a transition probability.
     #[serde(default)]
-    pub published_line: bool,
+    pub listing: Listing,
+}
+
+/// Whether a predicted line is in the line list of its source.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
+pub enum Listing {
+    /// No line list was consulted (a user's level table, a level model).
+    #[default]
+    NotConsulted,
+    /// The compiled spectrum's source lists the line.
+    Listed,
+    /// The compiled spectrum's source does not list the line: a Ritz combination
+    /// the compilation does not report as seen.
+    NotListed,
 }
 
 /// A published transition probability, with what intensity estimates need besides.

@@ -27,7 +27,8 @@ pub const LEVEL_COLUMNS: [&str; 7] = [
 /// compilations print them: `[87846.9]` for a value not from experiment (calculated,
 /// extrapolated or derived), `142080.75+x` for a value relative to an unknown offset
 /// x (a system of levels not connected to the ground level by observed lines), or
-/// both, `[131000.00]+x`.
+/// both, `[131000.00]+x`; or in an optional column `energy_status` (`bracketed`,
+/// `+x`, `bracketed +x`), as the compiled tables do.
 #[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
 pub struct EnergyStatus {
     /// Printed in brackets: not from experiment.
@@ -290,9 +291,11 @@ pub fn read_level_table(
     })
 }
 
-/// Positions of the required columns in the header.
+/// Positions of the required columns in the header, and of the optional
+/// `energy_status`.
 struct Columns {
     index: [usize; 7],
+    energy_status: Option<usize>,
 }
 
 impl Columns {
@@ -308,7 +311,13 @@ impl Columns {
                 column: name,
             })?;
         }
-        Ok(Columns { index })
+        let energy_status = header
+            .iter()
+            .position(|h| h.eq_ignore_ascii_case("energy_status"));
+        Ok(Columns {
+            index,
+            energy_status,
+        })
     }
 
     /// The field of column `LEVEL_COLUMNS[which]`.
@@ -354,7 +363,28 @@ fn read_row(
             ),
         ));
     }
-    let (energy_text, energy_status) = energy_marks(field(4));
+    let (energy_text, mut energy_status) = energy_marks(field(4));
+    let status_text = columns
+        .energy_status
+        .and_then(|i| record.get(i))
+        .unwrap_or("");
+    for word in status_text.split_whitespace() {
+        match word.strip_prefix('+') {
+            None if word == "bracketed" => energy_status.bracketed = true,
+            Some(letter) if letter.len() == 1 && letter.chars().all(|c| c.is_ascii_lowercase()) => {
+                energy_status.offset = letter.chars().next();
+            }
+            _ => {
+                return Err(bad(
+                    "energy_status",
+                    format!(
+                        "'{word}' is not an energy status: expected bracketed (not from \
+                         experiment) and/or +x (relative to an unknown offset x)"
+                    ),
+                ));
+            }
+        }
+    }
     let energy_cm1 = number(energy_text).ok_or_else(|| {
         bad(
             "energy_cm1",
@@ -559,6 +589,24 @@ mod tests {
         assert_eq!(t.levels[1].energy_cm1, 131000.0);
         assert!(status[1].combines_with(status[2]) && !status[0].combines_with(status[2]));
         assert_eq!(status[1].write("131000.00"), "[131000.00]+x");
+        let column = read_level_table(
+            "species,configuration,term,J,energy_cm1,uncertainty_cm1,source,energy_status\n\
+             N I,2s.2p3.(5S*).3s,6S*,5/2,131000.00,0.01,x,bracketed +x\n\
+             N I,2s2.2p3,4S*,3/2,0.000,0,x,\n"
+                .as_bytes(),
+            "t.csv",
+        )
+        .unwrap();
+        assert_eq!(column.levels[0].energy_status, status[1]);
+        assert_eq!(column.levels[1].energy_status, EnergyStatus::MEASURED);
+        let e = read_level_table(
+            "species,configuration,term,J,energy_cm1,uncertainty_cm1,source,energy_status\n\
+             N I,2s2.2p3,4S*,3/2,0.000,0,x,calculated\n"
+                .as_bytes(),
+            "t.csv",
+        )
+        .unwrap_err();
+        assert!(e.to_string().starts_with("t.csv:2: column 'energy_status'"), "{e}");
         assert!(read("N I,2s2.2p3,4S*,3/2,[1.0,0,x\n").is_err());
         assert!(read("N I,2s2.2p3,4S*,3/2,1.0+,0,x\n").is_err());
     }

@@ -55,7 +55,7 @@ pub fn model_predictions(
             relative_strength: Some(l.gf),
             transition_probability: None,
             bracketed_level: false,
-            published_line: false,
+            listing: Default::default(),
         })
         .collect();
     Predictions::new(

@@ -315,9 +315,14 @@ impl Fields<'_> {
         if parts.iter().all(|p| p.is_empty()) {
             return Ok(None);
         }
-        LevelLabel::from_fields(parts[0], parts[1], parts[2])
-            .map(Some)
-            .map_err(|e| self.bad(&column(e.part), e.problem))
+        let label = LevelLabel::from_fields(parts[0], parts[1], parts[2])
+            .map_err(|e| self.bad(&column(e.part), e.problem))?;
+        // A level energy is fitted to a consistent label only: a term whose parity
+        // is not the configuration's, or a J the term does not allow, is refused here.
+        match label.warnings().into_iter().next() {
+            Some(e) => Err(self.bad(&column(e.part), e.problem)),
+            None => Ok(Some(label)),
+        }
     }
 
     fn count(&self, name: &str) -> Result<Option<usize>, ClassifiedReadError> {
@@ -450,7 +455,7 @@ mod tests {
                 "a.csv:2: column 'observed_uncertainty_cm1'",
             ),
             (
-                "He I,1,1,1s.2p,1X,1,1s.3d,1D,2,14970,0.1,",
+                "He I,1,1,1s.2p,1Q,1,1s.3d,1D,2,14970,0.1,",
                 "a.csv:2: column 'lower_term'",
             ),
             (
