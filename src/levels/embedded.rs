@@ -348,8 +348,7 @@ impl EmbeddedTable {
         let table = self.load()?;
         let rates = self.transition_rates()?;
         let warnings = table.warnings.len();
-        let mut predictions =
-            predict_levels(
+        let mut predictions = predict_levels(
             table.levels,
             &table.source,
             Some(compiled_range()),

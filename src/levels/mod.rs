@@ -47,8 +47,8 @@ pub use embedded::{
 };
 pub use label::{LabelError, LevelLabel};
 pub use predicted::{
-    AccuracyCode, Listing, PredictedLine, PredictionError, Predictions, SpeciesOrigin, SpeciesSummary,
-    TransitionProbability,
+    AccuracyCode, Listing, PredictedLine, PredictionError, Predictions, SpeciesOrigin,
+    SpeciesSummary, TransitionProbability,
 };
 pub use ritz::{WavenumberRange, predict_from_table, predict_lines, ritz_wavenumber};
 pub use table::{

@@ -606,7 +606,10 @@ mod tests {
             "t.csv",
         )
         .unwrap_err();
-        assert!(e.to_string().starts_with("t.csv:2: column 'energy_status'"), "{e}");
+        assert!(
+            e.to_string().starts_with("t.csv:2: column 'energy_status'"),
+            "{e}"
+        );
         assert!(read("N I,2s2.2p3,4S*,3/2,[1.0,0,x\n").is_err());
         assert!(read("N I,2s2.2p3,4S*,3/2,1.0+,0,x\n").is_err());
     }
