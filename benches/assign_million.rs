@@ -36,6 +36,7 @@ fn predictions(n: usize, scale: f64, rng: &mut StdRng) -> Predictions {
         energy_cm1,
         uncertainty_cm1: 0.0,
         source: "synthetic".into(),
+        energy_status: Default::default(),
     };
     let levels = vec![level("3d6.4s2 5D 4", 0.0), level("3d6.4s.4p 5F° 5", 1.0)];
     let lines = (0..n)
@@ -48,6 +49,9 @@ fn predictions(n: usize, scale: f64, rng: &mut StdRng) -> Predictions {
             rules: SelectionRules::Ls,
             flags: TransitionFlags::default(),
             relative_strength: None,
+            transition_probability: None,
+            bracketed_level: false,
+            listing: Default::default(),
         })
         .collect();
     let origin = SpeciesOrigin {

@@ -48,6 +48,7 @@ fn ti_like() -> (LoadedModel, Vec<levels::Level>) {
                 energy_cm1: l.energy_cm1 + 2.0 * random.random_range(-1.0..1.0),
                 uncertainty_cm1: 0.5,
                 source: "invented".into(),
+                energy_status: Default::default(),
             }
         })
         .collect();

@@ -30,6 +30,7 @@ fn thirty_parameters_come_back_from_their_own_levels() {
                 energy_cm1: l.energy_cm1,
                 uncertainty_cm1: 0.01,
                 source: "computed".into(),
+                energy_status: Default::default(),
             }
         })
         .collect();

@@ -132,7 +132,7 @@ fn neon_lines() -> Vec<f64> {
             .rev()
             .find_map(|part| match part {
                 ConfigPart::Subshell(s) => Some((s.n, s.l)),
-                ConfigPart::Intermediate(_) => None,
+                _ => None,
             })
     };
     p.lines()

@@ -21,7 +21,10 @@
 //!   where a line that breaks a non-rigorous selection rule (intercombination,
 //!   L-forbidden, jump-forbidden, two-electron-jump) counts as if it lay further off:
 //!   √((Δ/u_c)² + n·p²) for n broken rules, p = [`MatchConfig::rule_penalty_sigma`]
-//!   (default 2; 0 ranks by deviation alone). Ties: lower chance probability
+//!   (default 2; 0 ranks by deviation alone). For the compiled spectra the line
+//!   lists of their sources count too ([`PredictedLine::listing`]): a listed line is
+//!   known to be seen and gets no penalty (its flags are still shown); a Ritz
+//!   combination the source does not list counts as breaking one rule more. Ties: lower chance probability
 //!   first, then prediction order.
 //! - Each gets a chance-coincidence probability from the local density of predicted
 //!   lines (see [`chance`]).

@@ -28,7 +28,8 @@ use crate::units::{LengthUnit, Medium, Wavelength};
 /// | `upper_configuration`, `upper_term`, `upper_J`, `upper_energy_cm1` | upper level |
 /// | `predicted_wavenumber_cm1`, `predicted_uncertainty_cm1` | the prediction (its uncertainty includes any model uncertainty) |
 /// | `predicted_in_given_unit` | the prediction in the unit and medium of `given_*` |
-/// | `predicted_strength` | the predicted relative strength: gf for lines of a level model, blank for Ritz predictions from level tables |
+/// | `predicted_strength` | the predicted relative strength gf: of a level model's line, or from the published A_ki of a compiled table's line; blank otherwise |
+/// | `ga_s1` | g_k·A_ki of the upper level k, s⁻¹, from the published transition probability of a compiled table's line; blank when none is published |
 /// | `deviation_cm1` | observed − predicted |
 /// | `combined_uncertainty_cm1` | √(observed² + predicted²) |
 /// | `deviation_sigma` | `deviation_cm1 / combined_uncertainty_cm1` |
@@ -39,7 +40,7 @@ use crate::units::{LengthUnit, Medium, Wavelength};
 /// Terms are printed `2S+1 L` with `°` for odd parity (`3P°`), pair-coupling terms
 /// `2[3/2]°`. Numbers are printed with the fewest digits that read back to the same
 /// binary value.
-pub const ASSIGN_COLUMNS: [&str; 27] = [
+pub const ASSIGN_COLUMNS: [&str; 28] = [
     "line",
     "given_value",
     "given_unit",
@@ -61,6 +62,7 @@ pub const ASSIGN_COLUMNS: [&str; 27] = [
     "predicted_uncertainty_cm1",
     "predicted_in_given_unit",
     "predicted_strength",
+    "ga_s1",
     "deviation_cm1",
     "combined_uncertainty_cm1",
     "deviation_sigma",
@@ -138,6 +140,11 @@ pub struct CandidateRecord {
     /// The predicted relative strength ([`crate::levels::PredictedLine::relative_strength`]:
     /// gf for the lines of a level model), `None` when the predictions have none.
     pub predicted_strength: Option<f64>,
+    /// g_k·A_ki, s⁻¹, from the published transition probability of the line
+    /// ([`crate::levels::PredictedLine::transition_probability`]), `None` when none
+    /// is published.
+    #[serde(default)]
+    pub ga_s1: Option<f64>,
     /// Observed − predicted, cm⁻¹.
     pub deviation_cm1: f64,
     /// Combined standard uncertainty, cm⁻¹.
@@ -206,6 +213,7 @@ pub fn records(
                         list.air_formula,
                     ),
                     predicted_strength: line.relative_strength,
+                    ga_s1: line.transition_probability.map(|t| t.ga_s1()),
                     deviation_cm1: candidate.deviation_cm1,
                     combined_uncertainty_cm1: candidate.combined_uncertainty_cm1,
                     deviation_sigma: candidate.deviation_sigma,
@@ -281,13 +289,14 @@ impl AssignmentRecord {
                 number(c.predicted_uncertainty_cm1),
                 optional(c.predicted_in_given_unit),
                 optional(c.predicted_strength),
+                optional(c.ga_s1),
                 number(c.deviation_cm1),
                 number(c.combined_uncertainty_cm1),
                 number(c.deviation_sigma),
                 number(c.chance_probability),
                 c.selection_rules.name().to_string(),
             ]),
-            None => fields.extend(std::iter::repeat_n(String::new(), 18)),
+            None => fields.extend(std::iter::repeat_n(String::new(), 19)),
         }
         fields.push(
             self.flags
@@ -615,6 +624,7 @@ impl Fields<'_> {
             predicted_uncertainty_cm1: self.number("predicted_uncertainty_cm1")?,
             predicted_in_given_unit: self.optional_number("predicted_in_given_unit")?,
             predicted_strength: self.optional_number("predicted_strength")?,
+            ga_s1: self.optional_number("ga_s1")?,
             deviation_cm1,
             combined_uncertainty_cm1: combined,
             deviation_sigma,

@@ -18,7 +18,7 @@
 
 use std::collections::BTreeMap;
 
-use crate::levels::Predictions;
+use crate::levels::{Listing, Predictions};
 
 /// Predicted lines of one uncertainty class, sorted by wavenumber.
 #[derive(Debug, Default)]
@@ -31,8 +31,10 @@ struct UncertaintyClass {
     uncertainties: Vec<f64>,
     /// Index of each line in `Predictions::lines()`.
     lines: Vec<u32>,
-    /// How many non-rigorous selection rules each line breaks (kept here so that
-    /// ranking needs no look-up in the full prediction list).
+    /// How many non-rigorous selection rules each line counts as breaking in
+    /// ranking: 0 for a line its compiled source lists, one more than it breaks for
+    /// one the source does not list (kept here so that ranking needs no look-up in
+    /// the full prediction list).
     broken_rules: Vec<u8>,
 }
 
@@ -105,7 +107,7 @@ impl CandidateIndex {
     /// Build the index. Each line's uncertainty is its own combined in quadrature with
     /// the model uncertainty of its species.
     pub fn new(predictions: &Predictions) -> CandidateIndex {
-        let model: Vec<_> = predictions
+        let model: std::collections::HashMap<_, _> = predictions
             .species()
             .iter()
             .map(|s| (s.species, s.model_uncertainty_cm1))
@@ -113,10 +115,7 @@ impl CandidateIndex {
         let mut classes: BTreeMap<i32, UncertaintyClass> = BTreeMap::new();
         let lines = predictions.lines();
         for (index, line) in lines.iter().enumerate() {
-            let model_u = model
-                .iter()
-                .find(|(s, _)| *s == line.species)
-                .map_or(0.0, |(_, u)| *u);
+            let model_u = model.get(&line.species).copied().unwrap_or(0.0);
             let u = (line.uncertainty_cm1.powi(2) + model_u.powi(2)).sqrt();
             let key = if u > 0.0 {
                 u.log2().floor() as i32
@@ -128,8 +127,16 @@ impl CandidateIndex {
             class.wavenumbers.push(line.wavenumber_cm1);
             class.uncertainties.push(u);
             class.lines.push(index as u32);
-            let flags = &line.flags;
-            class.broken_rules.push(flags.broken());
+            // The rule penalty is a prior against lines too weak to be seen. A line
+            // that the compiled spectrum's source lists is known to be seen: no
+            // penalty (its flags are still reported). One it does not list is a
+            // Ritz combination the compilation does not report: one rule more.
+            let broken = match line.listing {
+                Listing::Listed => 0,
+                Listing::NotListed => line.flags.broken() + 1,
+                Listing::NotConsulted => line.flags.broken(),
+            };
+            class.broken_rules.push(broken);
         }
         CandidateIndex {
             classes: classes.into_values().collect(),

@@ -23,6 +23,7 @@ fn predictions(lines: &[(f64, f64)], model_u: f64) -> Predictions {
         energy_cm1,
         uncertainty_cm1: 0.0,
         source: "test".into(),
+        energy_status: Default::default(),
     };
     let levels = vec![level("1s2 1S 0", 0.0), level("1s.2p 1P° 1", 171134.9)];
     let lines = lines
@@ -36,6 +37,9 @@ fn predictions(lines: &[(f64, f64)], model_u: f64) -> Predictions {
             rules: SelectionRules::Ls,
             flags: TransitionFlags::default(),
             relative_strength: None,
+            transition_probability: None,
+            bracketed_level: false,
+            listing: Default::default(),
         })
         .collect();
     let origins = vec![SpeciesOrigin {

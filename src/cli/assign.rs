@@ -9,7 +9,10 @@ use super::CliError;
 use super::input::{open_input, read_levels_file};
 use super::output::write_output;
 use crate::assign::{MatchConfig, MatchProgress, assign_lines_with_progress, records};
-use crate::levels::{EMBEDDED_TABLES, LevelTable, Predictions, embedded_table, predict_from_table};
+use crate::levels::{
+    EMBEDDED_TABLES, EmbeddedTable, Predictions, compiled_predictions, embedded_stages,
+    embedded_table, predict_from_table,
+};
 use crate::linelist::{GlobalUncertainty, LineList, ReadOptions, read_line_list};
 use crate::notation::Species;
 use crate::report::{
@@ -22,11 +25,12 @@ use crate::units::{AirFormula, Medium};
 /// with the probability that each match is a chance coincidence.
 ///
 /// Predicted lines are the E1 lines between the levels of the compiled reference
-/// tables (NIST ASD 2014: H I, He I, Ne I, Ar I, Cd I, Hg I), of your own level
-/// tables (--levels), or of a level model (--model). A prediction is a candidate
-/// when it lies within K combined standard uncertainties of the observed line
-/// (--within). Every output says how the input was read (medium, air formula) and
-/// which selection rules were applied.
+/// tables (29 spectra from the NIST ASD, 100 nm – 2.5 µm, with published transition
+/// probabilities; --list-species shows them), of your own level tables (--levels),
+/// or of a level model (--model). A prediction is a candidate when it lies within K
+/// combined standard uncertainties of the observed line (--within). Every output
+/// says how the input was read (medium, air formula) and which selection rules were
+/// applied.
 #[derive(Debug, clap::Args)]
 #[command(after_help = AFTER_HELP)]
 pub struct AssignArgs {
@@ -34,17 +38,25 @@ pub struct AssignArgs {
     /// columns with a header line naming the columns, such as
     /// wavelength_nm,uncertainty_nm,intensity (also wavelength_A, wavelength_um,
     /// wavenumber_cm1, medium; # starts a comment).
-    #[arg(value_name = "LINES")]
-    pub lines: PathBuf,
+    #[arg(value_name = "LINES", required_unless_present = "list_species")]
+    pub lines: Option<PathBuf>,
 
-    /// Match against the compiled table of this spectrum; repeat for several
-    /// (--species "He I" --species "Ne I"). Compiled: H I, He I, Ne I, Ar I, Cd I,
-    /// Hg I. With --levels, picks species from your tables instead. [default: all]
+    /// Match against the compiled table of this spectrum (`He I`), or of every
+    /// compiled stage of an element (`Ar`: Ar I and Ar II); repeat for several
+    /// (--species "He I" --species Ne). With --levels, the compiled spectra named
+    /// here are matched too; a table of yours for one of them replaces it.
+    /// [default: every compiled spectrum, or with --levels none]
     #[arg(long = "species", value_name = "SPECTRUM")]
     pub species: Vec<String>,
 
-    /// Predict lines from the levels in FILE instead of the compiled tables; repeat
-    /// for several files. CSV with the columns
+    /// List the compiled spectra (levels, predicted lines, lines with a published
+    /// transition probability, level energies, source) and stop.
+    #[arg(long = "list-species")]
+    pub list_species: bool,
+
+    /// Predict lines from the levels in FILE; repeat for several files. Alone, only
+    /// your tables are matched; with --species, the compiled spectra named there too.
+    /// CSV with the columns
     /// species,configuration,term,J,energy_cm1,uncertainty_cm1,source.
     #[arg(long = "levels", value_name = "FILE")]
     pub levels: Vec<PathBuf>,
@@ -118,9 +130,12 @@ pub(crate) const LONG_ABOUT: &str = "Assign each measured line to the transition
 have made it, ranked, with the probability that each match is a chance coincidence.
 
 Predicted lines are the electric-dipole lines between the levels of the compiled reference \
-tables (NIST ASD 2014: H I, He I, Ne I, Ar I, Cd I, Hg I), of your own level tables \
-(--levels), or of a level model (--model, with predicted gf values shown beside each \
-candidate). A prediction is a candidate when it lies within K combined standard \
+tables (29 spectra from the NIST Atomic Spectra Database: H I, He I, Li I, C I, C II, N I, \
+N II, O I, O II, Ne I, Ne II, Na I, Mg I, Mg II, Al I, Si I, Ar I, Ar II, K I, Ca I, Ca II, \
+Fe I, Fe II, Cu I, Zn I, Kr II, Cd I, W I, Hg I; lines from 100 nm to 2.5 µm, with the \
+published transition probabilities, shown as gA; see --list-species), of your own level \
+tables (--levels), or of a level model (--model, with predicted gf values shown beside \
+each candidate). A prediction is a candidate when it lies within K combined standard \
 uncertainties of the observed line (--within). Every output says how the input was read \
 (medium, air formula) and which selection rules were applied.";
 
@@ -129,7 +144,10 @@ Examples:
   termsight assign lines.csv
   termsight assign lines.csv --species \"He I\" --species \"Ne I\" --all
   termsight assign scan.txt --uncertainty 0.002nm --format csv -o assigned.csv
+  termsight assign lines.csv --species Ar --species N --species O
   termsight assign lines.csv --levels my-levels.csv --within 4
+  termsight assign lines.csv --species \"He I\" --levels my-fe.csv
+  termsight assign --list-species
   termsight assign lines.csv --model ca-model.toml --model-uncertainty 150 --species \"He I\"
 
 Flags in the output: intercombination (ΔS ≠ 0), L-forbidden (ΔL > 1 or L 0–0),
@@ -183,6 +201,9 @@ const PROGRESS_ABOVE: usize = 200_000;
 
 /// Run `termsight assign`.
 pub fn run(args: AssignArgs) -> Result<(), CliError> {
+    if args.list_species {
+        return list_species(&args);
+    }
     let config = match_config(&args)?;
     let predictions = predictions(
         &args.levels,
@@ -242,9 +263,10 @@ fn match_config(args: &AssignArgs) -> Result<MatchConfig, CliError> {
         .map_err(flag("density-window"))
 }
 
-/// The predictions: from the user's level tables if any, else from the compiled
-/// ones (none when only models are given); restricted to the species asked for;
-/// and the lines of every model.
+/// The predictions: from the compiled tables named with --species (all of them
+/// when neither --species, --levels nor --model is given), from every level table
+/// given with --levels (a table of a compiled species replaces the compiled one, and
+/// the outputs say so), and from every model.
 fn predictions(
     level_files: &[PathBuf],
     species_names: &[String],
@@ -253,45 +275,75 @@ fn predictions(
 ) -> Result<Predictions, CliError> {
     let mut wanted: Vec<Species> = Vec::new();
     for name in species_names {
-        let species = name
-            .parse::<Species>()
-            .map_err(|e| CliError::Message(format!("--species: {e}")))?;
-        // The same species named twice is asked for once (not "given twice").
-        if !wanted.contains(&species) {
-            wanted.push(species);
+        for species in requested_species(name)? {
+            // The same species named twice is asked for once (not "given twice").
+            if !wanted.contains(&species) {
+                wanted.push(species);
+            }
         }
     }
-    let tables: Vec<LevelTable> = if level_files.is_empty() {
-        if models.is_empty() || !wanted.is_empty() {
-            compiled_tables(&wanted)?
+    let tables = level_files
+        .iter()
+        .map(|path| read_levels_file(path))
+        .collect::<Result<Vec<_>, _>>()?;
+    let in_tables = |species: &Species| tables.iter().any(|t| t.species().contains(species));
+    let compiled: Vec<&EmbeddedTable> = if wanted.is_empty() {
+        if tables.is_empty() && models.is_empty() {
+            EMBEDDED_TABLES.iter().collect()
         } else {
             Vec::new()
         }
     } else {
-        let tables = level_files
-            .iter()
-            .map(|path| read_levels_file(path))
-            .collect::<Result<Vec<_>, _>>()?;
+        let mut chosen = Vec::new();
         for species in &wanted {
-            if !tables.iter().any(|t| t.species().contains(species)) {
-                return Err(CliError::Message(format!(
-                    "--species: no level of {species} in the tables given with --levels"
-                )));
+            if in_tables(species) {
+                continue; // the user's table replaces the compiled one
+            }
+            chosen.push(embedded_table(*species).ok_or_else(|| {
+                CliError::Message(format!(
+                    "--species: no compiled table of {species}{}; compiled: {} (give your \
+                     own with --levels FILE)",
+                    if tables.is_empty() {
+                        ""
+                    } else {
+                        " and no level of it in the tables given with --levels"
+                    },
+                    EMBEDDED_TABLES.map(|t| t.species).join(", ")
+                ))
+            })?);
+        }
+        chosen
+    };
+    let mut sets =
+        vec![compiled_predictions(&compiled).map_err(|e| CliError::Message(e.to_string()))?];
+    for table in &tables {
+        let mut set = predict_from_table(table)
+            .map_err(|e| CliError::Message(format!("{}: {e}", table.source)))?;
+        for species in table.species() {
+            if !table.warnings.is_empty() {
+                set.add_note(
+                    species,
+                    format!(
+                        "{} warnings on {} (kept as given; listed on standard error)",
+                        table.warnings.len(),
+                        table.source
+                    ),
+                );
+            }
+            if wanted.contains(&species)
+                && let Some(compiled) = embedded_table(species)
+            {
+                set.add_note(
+                    species,
+                    format!(
+                        "this table replaces the compiled {species} table ({})",
+                        compiled.citation()
+                    ),
+                );
             }
         }
-        tables
-            .into_iter()
-            .map(|t| t.retain_species(|s| wanted.is_empty() || wanted.contains(&s)))
-            .filter(|t| !t.levels.is_empty())
-            .collect()
-    };
-    let mut sets = tables
-        .iter()
-        .map(|table| {
-            predict_from_table(table)
-                .map_err(|e| CliError::Message(format!("{}: {e}", table.source)))
-        })
-        .collect::<Result<Vec<_>, _>>()?;
+        sets.push(set);
+    }
     for path in models {
         sets.push(model_predictions_from(path, model_uncertainty)?);
     }
@@ -300,6 +352,26 @@ fn predictions(
             "{e}; each species may come from one level table or model only"
         ))
     })
+}
+
+/// The spectra named by one --species value: a spectrum (`Fe II`, `HeI`), or an
+/// element symbol alone for every compiled stage of it (`Ar`).
+fn requested_species(name: &str) -> Result<Vec<Species>, CliError> {
+    let symbol = name.trim();
+    if let Some(z) = crate::notation::element::atomic_number(symbol) {
+        let stages = embedded_stages(z);
+        if stages.is_empty() {
+            return Err(CliError::Message(format!(
+                "--species: no compiled spectrum of {symbol}; compiled: {} (give your own \
+                 with --levels FILE, naming the stage as in \"{symbol} I\")",
+                EMBEDDED_TABLES.map(|t| t.species).join(", ")
+            )));
+        }
+        return Ok(stages.iter().map(|t| t.spectrum()).collect());
+    }
+    name.parse::<Species>()
+        .map(|s| vec![s])
+        .map_err(|e| CliError::Message(format!("--species: {e}")))
 }
 
 /// The predictions of the level model in `path`, with the model uncertainty from
@@ -325,27 +397,38 @@ fn model_predictions_from(path: &Path, flag: Option<f64>) -> Result<Predictions,
         .map_err(|e| CliError::Message(format!("{name}: {e}")))
 }
 
-fn compiled_tables(wanted: &[Species]) -> Result<Vec<LevelTable>, CliError> {
-    let chosen: Vec<_> = if wanted.is_empty() {
-        EMBEDDED_TABLES.iter().collect()
-    } else {
-        wanted
-            .iter()
-            .map(|species| {
-                embedded_table(*species).ok_or_else(|| {
-                    CliError::Message(format!(
-                        "--species: no compiled table of {species}; compiled: {} (give your \
-                         own with --levels FILE)",
-                        EMBEDDED_TABLES.map(|t| t.species).join(", ")
-                    ))
-                })
+/// `--list-species`: the compiled spectra, as a table.
+fn list_species(args: &AssignArgs) -> Result<(), CliError> {
+    let rows = EMBEDDED_TABLES
+        .iter()
+        .map(|t| {
+            let levels = t.load().map_err(|e| CliError::Message(e.to_string()))?;
+            let predictions = t
+                .predictions()
+                .map_err(|e| CliError::Message(e.to_string()))?;
+            let summary = predictions.species().first().cloned();
+            let (low, high) = levels
+                .levels
+                .iter()
+                .fold((f64::MAX, f64::MIN), |(lo, hi), l| {
+                    (lo.min(l.energy_cm1), hi.max(l.energy_cm1))
+                });
+            Ok(crate::report::CompiledSpectrum {
+                species: t.species.to_string(),
+                levels: levels.levels.len(),
+                lines: predictions.lines().len(),
+                lines_with_transition_probability: summary
+                    .as_ref()
+                    .map_or(0, |s| s.lines_with_transition_probability),
+                lowest_level_cm1: low,
+                highest_level_cm1: high,
+                file: t.file.to_string(),
+                source: t.citation().to_string(),
             })
-            .collect::<Result<_, _>>()?
-    };
-    chosen
-        .into_iter()
-        .map(|t| t.load().map_err(|e| CliError::Message(e.to_string())))
-        .collect()
+        })
+        .collect::<Result<Vec<_>, CliError>>()?;
+    let text = crate::report::compiled_spectra_table(&rows);
+    write_output(args.output.as_deref(), text.as_bytes())
 }
 
 fn read_lines(args: &AssignArgs) -> Result<LineList, CliError> {
@@ -360,7 +443,11 @@ fn read_lines(args: &AssignArgs) -> Result<LineList, CliError> {
         ..ReadOptions::default()
     };
     let read_error = |e: crate::linelist::LineListError| CliError::Message(e.to_string());
-    let (reader, name) = open_input(&args.lines)?;
+    let path = args
+        .lines
+        .as_deref()
+        .ok_or_else(|| CliError::Message("give the line list to assign (LINES)".into()))?;
+    let (reader, name) = open_input(path)?;
     read_line_list(reader, &name, &options).map_err(read_error)
 }
 
@@ -401,9 +488,11 @@ mod tests {
 
     #[test]
     fn unknown_species_names_the_compiled_ones() {
-        let e = predictions(&[], &["Fe II".to_string()], &[], None).unwrap_err();
-        assert!(e.to_string().contains("no compiled table of Fe II"), "{e}");
-        assert!(e.to_string().contains("He I, Ne I"), "{e}");
+        let e = predictions(&[], &["Xe III".to_string()], &[], None).unwrap_err();
+        assert!(e.to_string().contains("no compiled table of Xe III"), "{e}");
+        assert!(e.to_string().contains("H I, He I, Li I"), "{e}");
+        let e = predictions(&[], &["Xe".to_string()], &[], None).unwrap_err();
+        assert!(e.to_string().contains("no compiled spectrum of Xe"), "{e}");
         let e = predictions(&[], &["Xx I".to_string()], &[], None).unwrap_err();
         assert!(
             e.to_string().starts_with("--species: cannot read species"),
@@ -418,5 +507,18 @@ mod tests {
         let p = predictions(&[], &["He I".into(), "Ne I".into()], &[], None).unwrap();
         let names: Vec<String> = p.species().iter().map(|s| s.species.to_string()).collect();
         assert_eq!(names, vec!["He I", "Ne I"]);
+    }
+
+    #[test]
+    fn an_element_symbol_asks_for_every_compiled_stage() {
+        let p = predictions(
+            &[],
+            &["Ar".into(), "He I".into(), "Ar II".into()],
+            &[],
+            None,
+        )
+        .unwrap();
+        let names: Vec<String> = p.species().iter().map(|s| s.species.to_string()).collect();
+        assert_eq!(names, vec!["Ar I", "Ar II", "He I"]);
     }
 }

@@ -80,7 +80,7 @@ pub struct FitArgs {
     )]
     pub levels: Option<PathBuf>,
     /// Fit to the compiled level table of this spectrum instead ("He I"); it must be
-    /// the model's species. Compiled: H I, He I, Ne I, Ar I, Cd I, Hg I.
+    /// the model's species (the 29 compiled spectra: `termsight assign --list-species`).
     #[arg(long, value_name = "SPECTRUM")]
     pub species: Option<String>,
     /// Output format.

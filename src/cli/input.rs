@@ -1,7 +1,7 @@
 //! Opening input files.
 
 use std::fs::File;
-use std::io::{self, BufRead, BufReader};
+use std::io::{self, BufRead, BufReader, Write};
 use std::path::Path;
 
 use super::CliError;
@@ -29,10 +29,27 @@ pub fn open_input(path: &Path) -> Result<(Box<dyn BufRead>, String), CliError> {
     }
 }
 
-/// The level table in the file at `path`; errors name the file.
+/// Warnings of one level table printed on standard error, at most.
+const WARNINGS_SHOWN: usize = 20;
+
+/// The level table in the file at `path`; errors name the file. What the table
+/// keeps but is odd (see [`LevelTable::warnings`]) is printed on standard error, each
+/// with its line and column.
 pub fn read_levels_file(path: &Path) -> Result<LevelTable, CliError> {
     let (reader, name) = open_file(path)?;
-    read_level_table(reader, &name).map_err(|e| CliError::Message(e.to_string()))
+    let table = read_level_table(reader, &name).map_err(|e| CliError::Message(e.to_string()))?;
+    let mut stderr = io::stderr().lock();
+    for warning in table.warnings.iter().take(WARNINGS_SHOWN) {
+        let _ = writeln!(stderr, "termsight: warning: {warning}");
+    }
+    if table.warnings.len() > WARNINGS_SHOWN {
+        let _ = writeln!(
+            stderr,
+            "termsight: warning: {} more in {name}",
+            table.warnings.len() - WARNINGS_SHOWN
+        );
+    }
+    Ok(table)
 }
 
 #[cfg(test)]

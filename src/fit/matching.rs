@@ -121,7 +121,7 @@ fn ls_parents(configuration: &Configuration) -> Vec<(u32, u32, Option<u32>)> {
         .iter()
         .filter_map(|part| match part {
             ConfigPart::Intermediate(i) => i.term.as_ls().map(|t| (t.multiplicity, t.l, t.index)),
-            ConfigPart::Subshell(_) => None,
+            _ => None,
         })
         .collect()
 }
@@ -550,6 +550,7 @@ mod tests {
             energy_cm1: energy,
             uncertainty_cm1: 0.01,
             source: String::new(),
+            energy_status: Default::default(),
         }
     }
 
@@ -697,6 +698,7 @@ mod tests {
             energy_cm1: energy,
             uncertainty_cm1: 0.0001,
             source: String::new(),
+            energy_status: Default::default(),
         };
         let experimental = [
             ne("2s2.2p5.(2P°<1/2>).3s 2[1/2]° 1", 135888.7173),

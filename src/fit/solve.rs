@@ -783,6 +783,7 @@ between = ["3s2", "3p2"]
                     energy_cm1: l.energy_cm1,
                     uncertainty_cm1: 0.01,
                     source: "computed".into(),
+                    energy_status: Default::default(),
                 }
             })
             .collect();

@@ -71,7 +71,8 @@ pub struct TransitionFlags {
     ///
     /// Both jump flags are judged on the subshells written in the labels, parent
     /// terms ignored; neither is judged when the two labels hold different numbers
-    /// of electrons (closed shells written in one and not the other).
+    /// of electrons (closed shells written in one and not the other), when a label
+    /// has no configuration, or when a subshell's n is not given (`nd`).
     pub two_electron_jump: bool,
 }
 
@@ -102,29 +103,77 @@ impl TransitionFlags {
 /// Whether two levels may combine in an E1 line: opposite parity, and ΔJ = 0, ±1
 /// but not J = 0 ↔ 0.
 pub fn is_e1_candidate(a: &LevelLabel, b: &LevelLabel) -> bool {
-    let (ja, jb) = (a.j.twice, b.j.twice);
-    a.parity() != b.parity() && ja.abs_diff(jb) <= 2 && !(ja == 0 && jb == 0)
+    RuleKey::of(a).combines_with(&RuleKey::of(b))
 }
 
 /// The rules applied to the line between `a` and `b` and the flags it earns (the
 /// order of the two levels does not matter). Call only for pairs that pass
 /// [`is_e1_candidate`].
 pub fn classify(a: &LevelLabel, b: &LevelLabel) -> (SelectionRules, TransitionFlags) {
-    let jump = electron_jump(a, b);
-    let mut flags = TransitionFlags {
-        jump_forbidden: jump == Jump::OneOtherDl,
-        two_electron_jump: jump == Jump::Several,
-        ..TransitionFlags::default()
-    };
-    let rules = match (&a.term, &b.term) {
-        (Term::Ls(ta), Term::Ls(tb)) => {
-            flags.intercombination = ta.multiplicity != tb.multiplicity;
-            flags.l_forbidden = ta.l.abs_diff(tb.l) > 1 || (ta.l == 0 && tb.l == 0);
-            SelectionRules::Ls
+    RuleKey::of(a).classify(&RuleKey::of(b))
+}
+
+/// What the selection rules need of one level, computed once per level so that the
+/// n² pairs of a table cost no allocation.
+#[derive(Debug, Clone)]
+pub(crate) struct RuleKey {
+    parity: crate::notation::Parity,
+    twice_j: u32,
+    /// (2S + 1, L) of an LS term.
+    ls: Option<(u32, u32)>,
+    /// Occupancy per subshell (n, l), sorted; `None` when jumps cannot be judged
+    /// (no configuration, or a subshell of unknown n).
+    occupancy: Option<Vec<((u32, u32), u32)>>,
+}
+
+impl RuleKey {
+    /// The key of a label.
+    pub(crate) fn of(label: &LevelLabel) -> RuleKey {
+        let c = &label.configuration;
+        let occupancy = (!c.is_empty() && c.is_fully_numbered()).then(|| {
+            let mut occ: Vec<((u32, u32), u32)> =
+                c.subshells().map(|s| ((s.n, s.l), s.occupancy)).collect();
+            occ.sort_unstable();
+            occ
+        });
+        RuleKey {
+            parity: label.parity(),
+            twice_j: label.j.twice,
+            ls: match &label.term {
+                Term::Ls(t) => Some((t.multiplicity, t.l)),
+                _ => None,
+            },
+            occupancy,
         }
-        _ => SelectionRules::ParityAndJ,
-    };
-    (rules, flags)
+    }
+
+    /// [`is_e1_candidate`] on two keys.
+    pub(crate) fn combines_with(&self, other: &RuleKey) -> bool {
+        let (ja, jb) = (self.twice_j, other.twice_j);
+        self.parity != other.parity && ja.abs_diff(jb) <= 2 && !(ja == 0 && jb == 0)
+    }
+
+    /// [`classify`] on two keys.
+    pub(crate) fn classify(&self, other: &RuleKey) -> (SelectionRules, TransitionFlags) {
+        let jump = match (&self.occupancy, &other.occupancy) {
+            (Some(a), Some(b)) => electron_jump(a, b),
+            _ => Jump::Allowed,
+        };
+        let mut flags = TransitionFlags {
+            jump_forbidden: jump == Jump::OneOtherDl,
+            two_electron_jump: jump == Jump::Several,
+            ..TransitionFlags::default()
+        };
+        let rules = match (self.ls, other.ls) {
+            (Some((ma, la)), Some((mb, lb))) => {
+                flags.intercombination = ma != mb;
+                flags.l_forbidden = la.abs_diff(lb) > 1 || (la == 0 && lb == 0);
+                SelectionRules::Ls
+            }
+            _ => SelectionRules::ParityAndJ,
+        };
+        (rules, flags)
+    }
 }
 
 /// How the electrons move between two configurations.
@@ -138,36 +187,50 @@ enum Jump {
     Several,
 }
 
-/// How the configurations of `a` and `b` differ: one electron moved from a subshell
-/// of l to one of l ± 1 (or not judged: different electron counts), one electron
-/// with another Δl, or more than one electron.
-fn electron_jump(a: &LevelLabel, b: &LevelLabel) -> Jump {
-    let occupancy = |label: &LevelLabel| -> Vec<((u32, u32), i64)> {
-        label
-            .configuration
-            .subshells()
-            .map(|s| ((s.n, s.l), i64::from(s.occupancy)))
-            .collect()
-    };
-    let (occ_a, occ_b) = (occupancy(a), occupancy(b));
-    let total = |occ: &[((u32, u32), i64)]| occ.iter().map(|(_, n)| n).sum::<i64>();
-    if total(&occ_a) != total(&occ_b) {
+/// How the configurations with the sorted occupancies `a` and `b` differ: one
+/// electron moved from a subshell of l to one of l ± 1 (or not judged: different
+/// electron counts), one electron with another Δl, or more than one electron.
+fn electron_jump(a: &[((u32, u32), u32)], b: &[((u32, u32), u32)]) -> Jump {
+    let total = |occ: &[((u32, u32), u32)]| occ.iter().map(|(_, n)| u64::from(*n)).sum::<u64>();
+    if total(a) != total(b) {
         return Jump::Allowed;
     }
-    // Net change of occupancy per subshell, b minus a.
-    let mut change: Vec<((u32, u32), i64)> = Vec::new();
-    for &(shell, n) in &occ_b {
-        change.push((shell, n));
-    }
-    for &(shell, n) in &occ_a {
-        match change.iter_mut().find(|(s, _)| *s == shell) {
-            Some((_, m)) => *m -= n,
-            None => change.push((shell, -n)),
+    // Net changes of occupancy per subshell, b minus a, from a merge of the two
+    // sorted lists; more than two changed subshells is already "several".
+    let mut changes: [((u32, u32), i64); 2] = [((0, 0), 0); 2];
+    let mut count = 0;
+    let (mut i, mut k) = (0, 0);
+    loop {
+        let (shell, change) = match (a.get(i), b.get(k)) {
+            (None, None) => break,
+            (Some(&(sa, na)), Some(&(sb, nb))) if sa == sb => {
+                i += 1;
+                k += 1;
+                (sa, i64::from(nb) - i64::from(na))
+            }
+            (Some(&(sa, na)), Some(&(sb, _))) if sa < sb => {
+                i += 1;
+                (sa, -i64::from(na))
+            }
+            (Some(&(sa, na)), None) => {
+                i += 1;
+                (sa, -i64::from(na))
+            }
+            (_, Some(&(sb, nb))) => {
+                k += 1;
+                (sb, i64::from(nb))
+            }
+        };
+        if change != 0 {
+            if count == 2 {
+                return Jump::Several;
+            }
+            changes[count] = (shell, change);
+            count += 1;
         }
     }
-    change.retain(|(_, n)| *n != 0);
-    match change.as_slice() {
-        [(s1, n1), (s2, n2)] if n1.abs() == 1 && *n1 == -n2 => {
+    match (count, changes) {
+        (2, [(s1, n1), (s2, n2)]) if n1.abs() == 1 && n1 == -n2 => {
             if s1.1.abs_diff(s2.1) == 1 {
                 Jump::Allowed
             } else {
@@ -264,6 +327,24 @@ mod tests {
             &label("2s2.2p5.(2P°<3/2>).3s 2[3/2]° 1"),
         );
         assert_eq!(rules, SelectionRules::ParityAndJ);
+    }
+
+    #[test]
+    fn incomplete_labels_get_parity_and_j_rules_and_no_jump_flags() {
+        // W I levels without configuration, Si I 3s2 3p nd levels (NIST ASD exports,
+        // shared/reference-data): jumps cannot be judged, LS rules do not apply.
+        let (rules, flags) = classify(&label("5d4.6s2 5D 1"), &label("#3° 2"));
+        assert_eq!(rules, SelectionRules::ParityAndJ);
+        assert_eq!(flags, TransitionFlags::default());
+        let (_, flags) = classify(&label("3s2.3p2 3P 1"), &label("3s2.3p.nd #2° 2"));
+        assert_eq!(flags, TransitionFlags::default());
+        // Fe I a 5D – z 5F°: letters do not change the LS rules.
+        let (rules, flags) = classify(
+            &label("3d6.4s2 a 5D 4"),
+            &label("3d6.(5D).4s.4p.(3P°) z 5F° 5"),
+        );
+        assert_eq!(rules, SelectionRules::Ls);
+        assert!(!flags.intercombination && !flags.l_forbidden);
     }
 
     #[test]

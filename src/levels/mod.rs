@@ -5,8 +5,10 @@
 //!   [`crate::notation`]; with the species it is the key of a level.
 //! - [`Level`], [`LevelTable`], [`read_level_table`]: the CSV level table
 //!   `species,configuration,term,J,energy_cm1,uncertainty_cm1,source`.
-//! - [`EMBEDDED_TABLES`]: H I, He I, Ne I, Ar I, Cd I and Hg I from the NIST Atomic
-//!   Spectra Database (2014), see `reference-levels/SOURCES.md`.
+//! - [`EMBEDDED_TABLES`]: 29 spectra (neutrals and first ions, H I to Hg I) from the
+//!   NIST Atomic Spectra Database, with the published E1 transition probabilities of
+//!   their lines; [`compiled_predictions`] gives their lines from 100 nm to 2.5 µm.
+//!   See `reference-levels/SOURCES.md`.
 //! - [`e1`]: the E1 selection rules, which pairs of levels may combine and how a line
 //!   is flagged (intercombination, L-forbidden, jump-forbidden, two-electron-jump).
 //! - [`Predictions`], [`PredictedLine`]: predicted lines sorted by wavenumber, with
@@ -39,10 +41,17 @@ mod ritz;
 mod table;
 
 pub use e1::{SelectionRules, TransitionFlags};
-pub use embedded::{EMBEDDED_TABLES, EmbeddedTable, embedded_table};
+pub use embedded::{
+    COMPILED_RANGE_NM, CompiledError, EMBEDDED_TABLES, EmbeddedTable, RatesError,
+    compiled_predictions, compiled_range, embedded_stages, embedded_table,
+};
 pub use label::{LabelError, LevelLabel};
-pub use predicted::{PredictedLine, PredictionError, Predictions, SpeciesOrigin, SpeciesSummary};
-pub use ritz::{predict_from_table, ritz_wavenumber};
+pub use predicted::{
+    AccuracyCode, Listing, PredictedLine, PredictionError, Predictions, SpeciesOrigin,
+    SpeciesSummary, TransitionProbability,
+};
+pub use ritz::{WavenumberRange, predict_from_table, predict_lines, ritz_wavenumber};
 pub use table::{
-    LEVEL_COLUMNS, Level, LevelTable, LevelTableError, MAX_LEVEL_TABLE_BYTES, read_level_table,
+    EnergyStatus, LEVEL_COLUMNS, Level, LevelTable, LevelTableError, MAX_LEVEL_TABLE_BYTES,
+    TableWarning, read_level_table,
 };

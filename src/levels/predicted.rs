@@ -31,8 +31,128 @@ pub struct PredictedLine {
     /// Which of those rules the line breaks.
     pub flags: TransitionFlags,
     /// Relative line strength (any scale, comparable within a species), when the
-    /// source of the predictions gives one; `None` for Ritz predictions.
+    /// source of the predictions gives one: gf for the lines of a level model, and
+    /// for Ritz lines with a published A_ki ([`TransitionProbability::gf`]); `None`
+    /// otherwise.
     pub relative_strength: Option<f64>,
+    /// The published E1 transition probability of the line, when the compiled table
+    /// gives one; `None` when none is published (or for lines of a user's table or a
+    /// model).
+    #[serde(default)]
+    pub transition_probability: Option<TransitionProbability>,
+    /// True when one of the two levels has an energy not from experiment (printed in
+    /// brackets by the compilation, [`super::EnergyStatus::bracketed`]).
+    #[serde(default)]
+    pub bracketed_level: bool,
+    /// Whether the source's line list gives this line (classified, observed or
+    /// computed), with or without a transition probability.
+    #[serde(default)]
+    pub listing: Listing,
+}
+
+/// Whether a predicted line is in the line list of its source.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
+pub enum Listing {
+    /// No line list was consulted (a user's level table, a level model).
+    #[default]
+    NotConsulted,
+    /// The compiled spectrum's source lists the line.
+    Listed,
+    /// The compiled spectrum's source does not list the line: a Ritz combination
+    /// the compilation does not report as seen.
+    NotListed,
+}
+
+/// A published transition probability, with what intensity estimates need besides.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct TransitionProbability {
+    /// A_ki, the Einstein coefficient of spontaneous emission from the upper level k
+    /// to the lower level i, s⁻¹, as published.
+    pub a_ki_s1: f64,
+    /// g_k = 2J_k + 1, the statistical weight of the upper level.
+    pub g_upper: u32,
+    /// The compilation's accuracy code, when it prints one.
+    pub accuracy: Option<AccuracyCode>,
+}
+
+impl TransitionProbability {
+    /// g_k·A_ki, s⁻¹ (the quantity emission intensities are proportional to, with the
+    /// upper level's Boltzmann factor and 1/λ).
+    pub fn ga_s1(&self) -> f64 {
+        f64::from(self.g_upper) * self.a_ki_s1
+    }
+
+    /// The weighted oscillator strength g_i·f_ik of the line at vacuum wavenumber
+    /// `wavenumber_cm1` (cm⁻¹): gf = g_k A_ki · (m_e c / 8π² e²) / σ² in Gaussian
+    /// units, 1.4992 cm⁻²·s · g_k A_ki / σ² (Wiese & Fuhr 2009, J. Phys. Chem. Ref.
+    /// Data 38, 565, eq. 3), from the constants of [`crate::transitions`].
+    pub fn gf(&self, wavenumber_cm1: f64) -> f64 {
+        crate::transitions::gf_from_ga(self.ga_s1(), wavenumber_cm1)
+    }
+}
+
+/// The accuracy codes of the NIST ASD transition probabilities, with the upper bound
+/// of the relative uncertainty of A each stands for (ASD's line-data help page;
+/// values from memory): AAA ≤ 0.3 %, AA ≤ 1 %, A+ ≤ 2 %, A ≤ 3 %, B+ ≤ 7 %, B ≤ 10 %,
+/// C+ ≤ 18 %, C ≤ 25 %, D+ ≤ 40 %, D ≤ 50 %, E > 50 %.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
+pub enum AccuracyCode {
+    /// ≤ 0.3 %.
+    AAA,
+    /// ≤ 1 %.
+    AA,
+    /// ≤ 2 %.
+    APlus,
+    /// ≤ 3 %.
+    A,
+    /// ≤ 7 %.
+    BPlus,
+    /// ≤ 10 %.
+    B,
+    /// ≤ 18 %.
+    CPlus,
+    /// ≤ 25 %.
+    C,
+    /// ≤ 40 %.
+    DPlus,
+    /// ≤ 50 %.
+    D,
+    /// > 50 %.
+    E,
+}
+
+impl AccuracyCode {
+    const NAMES: [(AccuracyCode, &'static str, f64); 11] = [
+        (AccuracyCode::AAA, "AAA", 0.003),
+        (AccuracyCode::AA, "AA", 0.01),
+        (AccuracyCode::APlus, "A+", 0.02),
+        (AccuracyCode::A, "A", 0.03),
+        (AccuracyCode::BPlus, "B+", 0.07),
+        (AccuracyCode::B, "B", 0.10),
+        (AccuracyCode::CPlus, "C+", 0.18),
+        (AccuracyCode::C, "C", 0.25),
+        (AccuracyCode::DPlus, "D+", 0.40),
+        (AccuracyCode::D, "D", 0.50),
+        (AccuracyCode::E, "E", f64::INFINITY),
+    ];
+
+    /// The code as printed (`A+`).
+    pub fn name(self) -> &'static str {
+        Self::NAMES.iter().find(|n| n.0 == self).map_or("", |n| n.1)
+    }
+
+    /// Read a printed code.
+    pub fn from_name(name: &str) -> Option<AccuracyCode> {
+        Self::NAMES.iter().find(|n| n.1 == name).map(|n| n.0)
+    }
+
+    /// The upper bound of the relative uncertainty of A (infinite for E).
+    pub fn relative_uncertainty(self) -> f64 {
+        Self::NAMES
+            .iter()
+            .find(|n| n.0 == self)
+            .map_or(f64::INFINITY, |n| n.2)
+    }
 }
 
 /// Where the predictions of one species come from, and what was applied.
@@ -53,6 +173,14 @@ pub struct SpeciesSummary {
     /// Lines where at least one label is in another coupling
     /// ([`SelectionRules::ParityAndJ`]).
     pub parity_and_j_lines: usize,
+    /// Lines with a published transition probability.
+    #[serde(default)]
+    pub lines_with_transition_probability: usize,
+    /// What else the outputs should say about these predictions (levels with
+    /// energies not from experiment or relative to an unknown offset, labels that
+    /// were kept with warnings, a table that replaces a compiled one, …).
+    #[serde(default)]
+    pub notes: Vec<String>,
 }
 
 impl SpeciesSummary {
@@ -185,12 +313,19 @@ impl Predictions {
                 levels: 0,
                 ls_lines: 0,
                 parity_and_j_lines: 0,
+                lines_with_transition_probability: 0,
+                notes: Vec::new(),
             });
         }
+        let position: std::collections::HashMap<Species, usize> = species
+            .iter()
+            .enumerate()
+            .map(|(i, s)| (s.species, i))
+            .collect();
         for level in &levels {
-            let summary = species
-                .iter_mut()
-                .find(|s| s.species == level.species)
+            let summary = position
+                .get(&level.species)
+                .and_then(|&i| species.get_mut(i))
                 .ok_or_else(|| PredictionError::BadSpecies {
                     species: level.species,
                     problem: "it has levels but no origin".into(),
@@ -198,14 +333,22 @@ impl Predictions {
             summary.levels += 1;
         }
         for line in &lines {
-            if let Some(summary) = species.iter_mut().find(|s| s.species == line.species) {
+            if let Some(summary) = position
+                .get(&line.species)
+                .and_then(|&i| species.get_mut(i))
+            {
                 match line.rules {
                     SelectionRules::Ls => summary.ls_lines += 1,
                     SelectionRules::ParityAndJ => summary.parity_and_j_lines += 1,
                 }
+                if line.transition_probability.is_some() {
+                    summary.lines_with_transition_probability += 1;
+                }
             }
         }
-        lines.sort_by(|a, b| a.wavenumber_cm1.total_cmp(&b.wavenumber_cm1));
+        if !lines.is_sorted_by(|a, b| a.wavenumber_cm1 <= b.wavenumber_cm1) {
+            lines.sort_by(|a, b| a.wavenumber_cm1.total_cmp(&b.wavenumber_cm1));
+        }
         Ok(Predictions {
             levels,
             lines,
@@ -221,6 +364,7 @@ impl Predictions {
         let mut levels = Vec::new();
         let mut lines = Vec::new();
         let mut origins = Vec::new();
+        let mut notes = Vec::new();
         for set in sets {
             let offset = levels.len();
             levels.extend(set.levels);
@@ -229,13 +373,30 @@ impl Predictions {
                 upper: line.upper + offset,
                 ..line
             }));
-            origins.extend(set.species.into_iter().map(|s| SpeciesOrigin {
-                species: s.species,
-                origin: s.origin,
-                model_uncertainty_cm1: s.model_uncertainty_cm1,
-            }));
+            for s in set.species {
+                notes.push((s.species, s.notes));
+                origins.push(SpeciesOrigin {
+                    species: s.species,
+                    origin: s.origin,
+                    model_uncertainty_cm1: s.model_uncertainty_cm1,
+                });
+            }
         }
-        Predictions::new(levels, lines, origins)
+        let mut combined = Predictions::new(levels, lines, origins)?;
+        for (species, notes) in notes {
+            for note in notes {
+                combined.add_note(species, note);
+            }
+        }
+        Ok(combined)
+    }
+
+    /// Add a note for the outputs to the summary of `species` (nothing when the set
+    /// does not have it).
+    pub fn add_note(&mut self, species: Species, note: String) {
+        if let Some(summary) = self.species.iter_mut().find(|s| s.species == species) {
+            summary.notes.push(note);
+        }
     }
 
     /// The lines, sorted by increasing wavenumber.

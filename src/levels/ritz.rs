@@ -1,9 +1,14 @@
 //! Ritz predictions: every E1 line between the levels of a table, its wavenumber the
 //! difference of the two level energies (the Ritz combination principle).
 
-use super::e1::{classify, is_e1_candidate};
-use super::predicted::{PredictedLine, PredictionError, Predictions, SpeciesOrigin};
+use std::collections::HashMap;
+
+use super::e1::RuleKey;
+use super::predicted::{
+    Listing, PredictedLine, PredictionError, Predictions, SpeciesOrigin, TransitionProbability,
+};
 use super::table::{Level, LevelTable};
+use crate::notation::Species;
 
 /// The Ritz wavenumber of the line between two levels and its standard uncertainty,
 /// cm⁻¹: σ = E_upper − E_lower, u(σ) = √(u_lower² + u_upper²).
@@ -19,15 +24,27 @@ pub fn ritz_wavenumber(lower: &Level, upper: &Level) -> (f64, f64) {
     )
 }
 
+/// A range of vacuum wavenumbers, cm⁻¹, both ends included.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct WavenumberRange {
+    /// Lowest wavenumber kept.
+    pub low_cm1: f64,
+    /// Highest wavenumber kept.
+    pub high_cm1: f64,
+}
+
 /// Predict the E1 lines of every species in `table`.
 ///
 /// Every pair of levels of one species with opposite parity and ΔJ = 0, ±1 (not
 /// 0 ↔ 0) gives a line (see [`super::e1`]); the higher level is the upper one.
-/// Pairs of equal energy give no line. Each line is classified with
-/// [`super::e1::classify`]: LS rules where both labels are LS, parity and J rules
-/// only otherwise; intercombination, L-forbidden, jump-forbidden and
-/// two-electron-jump lines are kept and flagged. The result is sorted by wavenumber; its species origins read
-/// `Ritz wavenumbers from <table source>`, with no model uncertainty.
+/// Pairs of equal energy give no line, and neither do pairs whose energies are not
+/// on one scale: a level relative to an unknown offset (`+x`) combines only with
+/// levels relative to the same offset, for which the offset cancels. Each line is
+/// classified with [`super::e1::classify`]: LS rules where both labels are LS,
+/// parity and J rules only otherwise; intercombination, L-forbidden,
+/// jump-forbidden and two-electron-jump lines are kept and flagged. The result is
+/// sorted by wavenumber; its species origins read `Ritz wavenumbers from <table
+/// source>`, with no model uncertainty.
 ///
 /// The work is O(n²) in the number of levels of each species (25 000 pairs for the
 /// 223 levels of Ne I).
@@ -35,17 +52,75 @@ pub fn ritz_wavenumber(lower: &Level, upper: &Level) -> (f64, f64) {
 /// Fails only for a table built by hand with non-finite numbers (a table read by
 /// [`super::read_level_table`] always gives a valid set).
 pub fn predict_from_table(table: &LevelTable) -> Result<Predictions, PredictionError> {
+    predict_levels(table.levels.clone(), &table.source, None, None)
+}
+
+/// [`predict_from_table`], keeping only the lines within `range` (all when `None`),
+/// with the source's line list `published`: a line between the levels of table
+/// indices (i, k), i < k, found there is [`Listing::Listed`] and gets the published
+/// transition probability, if any (with g_k = 2J + 1 of the upper level), and gf
+/// from it as its relative strength; the others are [`Listing::NotListed`].
+///
+/// The notes of each species' summary count what the outputs should say: levels
+/// with energies not from experiment, levels relative to an unknown offset and the
+/// lines not predicted for them, lines with an incomplete label.
+pub fn predict_lines(
+    table: &LevelTable,
+    range: Option<WavenumberRange>,
+    published: &HashMap<(usize, usize), Option<TransitionProbability>>,
+) -> Result<Predictions, PredictionError> {
+    predict_levels(table.levels.clone(), &table.source, range, Some(published))
+}
+
+/// [`predict_lines`] on levels owned by the caller (no copy), `source` naming them.
+pub(crate) fn predict_levels(
+    levels: Vec<Level>,
+    source: &str,
+    range: Option<WavenumberRange>,
+    published: Option<&HashMap<(usize, usize), Option<TransitionProbability>>>,
+) -> Result<Predictions, PredictionError> {
+    let mut species_list: Vec<Species> = Vec::new();
+    for level in &levels {
+        if !species_list.contains(&level.species) {
+            species_list.push(level.species);
+        }
+    }
+    // The published lines of each level, by partner index.
+    let mut partners: Vec<Vec<(usize, Option<TransitionProbability>)>> =
+        vec![Vec::new(); levels.len()];
+    for (&(i, k), rate) in published.into_iter().flatten() {
+        if let Some(list) = partners.get_mut(i) {
+            list.push((k, *rate));
+        }
+    }
+    let keys: Vec<RuleKey> = levels.iter().map(|l| RuleKey::of(&l.label)).collect();
+    let complete: Vec<bool> = levels.iter().map(|l| l.label.is_complete()).collect();
     let mut lines = Vec::new();
-    for species in table.species() {
-        let indices: Vec<usize> = (0..table.levels.len())
-            .filter(|&i| table.levels.get(i).is_some_and(|l| l.species == species))
+    let mut counts: Vec<(Species, NoteCounts)> = Vec::new();
+    for &species in &species_list {
+        let indices: Vec<usize> = (0..levels.len())
+            .filter(|&i| levels.get(i).is_some_and(|l| l.species == species))
             .collect();
+        let mut count = NoteCounts::default();
+        for &i in &indices {
+            if let Some(level) = levels.get(i) {
+                count.bracketed += usize::from(level.energy_status.bracketed);
+                count.offset += usize::from(level.energy_status.offset.is_some());
+            }
+        }
         for (n, &i) in indices.iter().enumerate() {
+            let (Some(a), Some(key_a)) = (levels.get(i), keys.get(i)) else {
+                continue;
+            };
             for &k in indices.iter().skip(n + 1) {
-                let (Some(a), Some(b)) = (table.levels.get(i), table.levels.get(k)) else {
+                let (Some(b), Some(key_b)) = (levels.get(k), keys.get(k)) else {
                     continue;
                 };
-                if !is_e1_candidate(&a.label, &b.label) || a.energy_cm1 == b.energy_cm1 {
+                if !key_a.combines_with(key_b) || a.energy_cm1 == b.energy_cm1 {
+                    continue;
+                }
+                if !a.energy_status.combines_with(b.energy_status) {
+                    count.off_scale += 1;
                     continue;
                 }
                 let ((lower, lower_level), (upper, upper_level)) = if a.energy_cm1 < b.energy_cm1 {
@@ -53,8 +128,25 @@ pub fn predict_from_table(table: &LevelTable) -> Result<Predictions, PredictionE
                 } else {
                     ((k, b), (i, a))
                 };
-                let (wavenumber_cm1, uncertainty_cm1) = ritz_wavenumber(lower_level, upper_level);
-                let (rules, flags) = classify(&lower_level.label, &upper_level.label);
+                let wavenumber_cm1 = upper_level.energy_cm1 - lower_level.energy_cm1;
+                if range.is_some_and(|r| !(r.low_cm1..=r.high_cm1).contains(&wavenumber_cm1)) {
+                    continue;
+                }
+                let (_, uncertainty_cm1) = ritz_wavenumber(lower_level, upper_level);
+                let (rules, flags) = key_a.classify(key_b);
+                let listed = partners
+                    .get(i)
+                    .and_then(|list| list.iter().find(|(partner, _)| *partner == k));
+                let transition_probability =
+                    listed.and_then(|(_, r)| *r).map(|r| TransitionProbability {
+                        g_upper: upper_level.label.j.multiplicity(),
+                        ..r
+                    });
+                if !(complete.get(i).copied().unwrap_or(false)
+                    && complete.get(k).copied().unwrap_or(false))
+                {
+                    count.incomplete += 1;
+                }
                 lines.push(PredictedLine {
                     species,
                     lower,
@@ -63,21 +155,72 @@ pub fn predict_from_table(table: &LevelTable) -> Result<Predictions, PredictionE
                     uncertainty_cm1,
                     rules,
                     flags,
-                    relative_strength: None,
+                    relative_strength: transition_probability.map(|t| t.gf(wavenumber_cm1)),
+                    transition_probability,
+                    bracketed_level: lower_level.energy_status.bracketed
+                        || upper_level.energy_status.bracketed,
+                    listing: match (published, listed) {
+                        (None, _) => Listing::NotConsulted,
+                        (Some(_), Some(_)) => Listing::Listed,
+                        (Some(_), None) => Listing::NotListed,
+                    },
                 });
             }
         }
+        counts.push((species, count));
     }
-    let origins = table
-        .species()
+    let origins = species_list
         .into_iter()
         .map(|species| SpeciesOrigin {
             species,
-            origin: format!("Ritz wavenumbers from {}", table.source),
+            origin: format!("Ritz wavenumbers from {source}"),
             model_uncertainty_cm1: 0.0,
         })
         .collect();
-    Predictions::new(table.levels.clone(), lines, origins)
+    let mut predictions = Predictions::new(levels, lines, origins)?;
+    for (species, count) in counts {
+        for note in count.notes() {
+            predictions.add_note(species, note);
+        }
+    }
+    Ok(predictions)
+}
+
+/// What [`predict_lines`] counts for the notes of one species.
+#[derive(Debug, Default)]
+struct NoteCounts {
+    bracketed: usize,
+    offset: usize,
+    off_scale: usize,
+    incomplete: usize,
+}
+
+impl NoteCounts {
+    fn notes(&self) -> Vec<String> {
+        let mut notes = Vec::new();
+        if self.bracketed > 0 {
+            notes.push(format!(
+                "{} level energies not from experiment (bracketed in the source; used as \
+                 published, lines to them marked)",
+                self.bracketed
+            ));
+        }
+        if self.offset > 0 {
+            notes.push(format!(
+                "{} levels relative to an unknown offset (+x): {} lines between them and \
+                 levels on the absolute scale not predicted",
+                self.offset, self.off_scale
+            ));
+        }
+        if self.incomplete > 0 {
+            notes.push(format!(
+                "{} lines involve a level without configuration or term: parity and J \
+                 rules only, no jump rules",
+                self.incomplete
+            ));
+        }
+        notes
+    }
 }
 
 #[cfg(test)]
@@ -127,12 +270,19 @@ mod tests {
             assert!(!p.lines().is_empty(), "{}", embedded.species);
             assert_eq!(summary.levels, t.levels.len());
             match embedded.species {
-                // Ne I and Ar I excited levels are in pair coupling; only the ground
-                // level is LS (NIST ASD 2014 labels), so no line is between two LS labels.
-                "Ne I" | "Ar I" => assert_eq!(summary.ls_lines, 0, "{}", embedded.species),
-                // Hg I mixes LS labels and pair-coupled 5d9 6s2 nl levels.
-                "Hg I" => assert!(summary.ls_lines > 0 && summary.parity_and_j_lines > 0),
-                _ => assert_eq!(summary.parity_and_j_lines, 0, "{}", embedded.species),
+                // Ne I excited levels are in pair coupling; only the ground level is LS
+                // (NIST ASD 2014 labels), so no line is between two LS labels.
+                "Ne I" => assert_eq!(summary.ls_lines, 0, "{}", embedded.species),
+                // H I, He I and Li I are all in LS labels (NIST ASD tables).
+                "H I" | "He I" | "Li I" => {
+                    assert_eq!(summary.parity_and_j_lines, 0, "{}", embedded.species)
+                }
+                // Hg I and W I mix LS labels with pair-coupled or incomplete ones
+                // (5d9 6s2 nl, levels without configuration).
+                "Hg I" | "W I" => {
+                    assert!(summary.ls_lines > 0 && summary.parity_and_j_lines > 0)
+                }
+                _ => {}
             }
             for line in p.lines() {
                 let (lower, upper) = p.levels_of(line).unwrap();

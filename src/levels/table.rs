@@ -21,6 +21,51 @@ pub const LEVEL_COLUMNS: [&str; 7] = [
     "source",
 ];
 
+/// How a level's energy is known, as the compilations mark it.
+///
+/// In a level table the marks are written in the `energy_cm1` field, as the
+/// compilations print them: `[87846.9]` for a value not from experiment (calculated,
+/// extrapolated or derived), `142080.75+x` for a value relative to an unknown offset
+/// x (a system of levels not connected to the ground level by observed lines), or
+/// both, `[131000.00]+x`; or in an optional column `energy_status` (`bracketed`,
+/// `+x`, `bracketed +x`), as the compiled tables do.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
+pub struct EnergyStatus {
+    /// Printed in brackets: not from experiment.
+    pub bracketed: bool,
+    /// The letter of the unknown offset (`x`, `y`, …) the value is relative to;
+    /// `None` for a value above the ground level.
+    pub offset: Option<char>,
+}
+
+impl EnergyStatus {
+    /// A measured value above the ground level.
+    pub const MEASURED: EnergyStatus = EnergyStatus {
+        bracketed: false,
+        offset: None,
+    };
+
+    /// Whether a line between levels of these two statuses has a known position:
+    /// both absolute, or both relative to the same offset (which then cancels).
+    pub fn combines_with(self, other: EnergyStatus) -> bool {
+        self.offset == other.offset
+    }
+
+    /// The energy as a level table writes it: `[value]`, `value+x`.
+    pub fn write(self, value: &str) -> String {
+        let mut text = if self.bracketed {
+            format!("[{value}]")
+        } else {
+            value.to_string()
+        };
+        if let Some(letter) = self.offset {
+            text.push('+');
+            text.push(letter);
+        }
+        text
+    }
+}
+
 /// One level of a spectrum.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Level {
@@ -35,6 +80,10 @@ pub struct Level {
     pub uncertainty_cm1: f64,
     /// Where the value comes from (a citation, or a note such as `calculated`).
     pub source: String,
+    /// Whether the energy is measured and above the ground level (the marks of the
+    /// `energy_cm1` field).
+    #[serde(default)]
+    pub energy_status: EnergyStatus,
 }
 
 /// A table of levels, of one spectrum or several, in the order read.
@@ -46,6 +95,21 @@ pub struct LevelTable {
     pub source: String,
     /// The levels, in the order read.
     pub levels: Vec<Level>,
+    /// What is odd in the table but kept (the table is the authority): labels whose
+    /// term parity disagrees with the configuration or whose J the term does not
+    /// allow, negative energies. Each names the line and column.
+    #[serde(skip)]
+    pub warnings: Vec<TableWarning>,
+}
+
+/// Something odd in a level table that is kept, with its place.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[error("{location}: {problem}")]
+pub struct TableWarning {
+    /// The row and column.
+    pub location: Location,
+    /// What is odd, and what is done with it.
+    pub problem: String,
 }
 
 impl LevelTable {
@@ -197,10 +261,11 @@ pub fn read_level_table(
     let columns = Columns::find(&header, || Location::line(source, header_line))?;
 
     let mut levels = Vec::new();
+    let mut warnings = Vec::new();
     let mut first_seen: HashMap<(Species, LevelLabel), usize> = HashMap::new();
     for record in records {
         let (line, record) = record.map_err(error)?;
-        let level = read_row(&record, &columns, source, line)?;
+        let level = read_row(&record, &columns, source, line, &mut warnings)?;
         let key = (level.species, level.label.clone());
         if let Some(&first_line) = first_seen.get(&key) {
             return Err(LevelTableError::Duplicate {
@@ -222,12 +287,15 @@ pub fn read_level_table(
     Ok(LevelTable {
         source: source.to_string(),
         levels,
+        warnings,
     })
 }
 
-/// Positions of the required columns in the header.
+/// Positions of the required columns in the header, and of the optional
+/// `energy_status`.
 struct Columns {
     index: [usize; 7],
+    energy_status: Option<usize>,
 }
 
 impl Columns {
@@ -243,7 +311,13 @@ impl Columns {
                 column: name,
             })?;
         }
-        Ok(Columns { index })
+        let energy_status = header
+            .iter()
+            .position(|h| h.eq_ignore_ascii_case("energy_status"));
+        Ok(Columns {
+            index,
+            energy_status,
+        })
     }
 
     /// The field of column `LEVEL_COLUMNS[which]`.
@@ -260,6 +334,7 @@ fn read_row(
     columns: &Columns,
     source: &str,
     line: usize,
+    warnings: &mut Vec<TableWarning>,
 ) -> Result<Level, LevelTableError> {
     let field = |which: usize| columns.get(record, which);
     let bad = |column: &str, problem: String| LevelTableError::BadField {
@@ -271,6 +346,12 @@ fn read_row(
         .map_err(|e| bad("species", format!("{e}")))?;
     let label = LevelLabel::from_fields(field(1), field(2), field(3))
         .map_err(|e| bad(e.part, e.problem))?;
+    for warning in label.warnings() {
+        warnings.push(TableWarning {
+            location: Location::line(source, line).column(warning.part),
+            problem: format!("{}; the level is kept", warning.problem),
+        });
+    }
     if !label.j_fits(species) {
         return Err(bad(
             "J",
@@ -282,12 +363,43 @@ fn read_row(
             ),
         ));
     }
-    let energy_cm1 = number(field(4)).ok_or_else(|| {
+    let (energy_text, mut energy_status) = energy_marks(field(4));
+    let status_text = columns
+        .energy_status
+        .and_then(|i| record.get(i))
+        .unwrap_or("");
+    for word in status_text.split_whitespace() {
+        match word.strip_prefix('+') {
+            None if word == "bracketed" => energy_status.bracketed = true,
+            Some(letter) if letter.len() == 1 && letter.chars().all(|c| c.is_ascii_lowercase()) => {
+                energy_status.offset = letter.chars().next();
+            }
+            _ => {
+                return Err(bad(
+                    "energy_status",
+                    format!(
+                        "'{word}' is not an energy status: expected bracketed (not from \
+                         experiment) and/or +x (relative to an unknown offset x)"
+                    ),
+                ));
+            }
+        }
+    }
+    let energy_cm1 = number(energy_text).ok_or_else(|| {
         bad(
             "energy_cm1",
             format!("'{}' is not an energy: expected a number in cm-1", field(4)),
         )
     })?;
+    if energy_cm1 < 0.0 {
+        warnings.push(TableWarning {
+            location: Location::line(source, line).column("energy_cm1"),
+            problem: format!(
+                "the energy {energy_cm1} cm-1 is below the ground level (energies are counted \
+                 from the ground level up); the level is kept as given"
+            ),
+        });
+    }
     let uncertainty_cm1 = number(field(5)).filter(|u| *u >= 0.0).ok_or_else(|| {
         bad(
             "uncertainty_cm1",
@@ -314,7 +426,27 @@ fn read_row(
         energy_cm1,
         uncertainty_cm1,
         source: field(6).to_string(),
+        energy_status,
     })
+}
+
+/// The number inside an energy field and the compilation's marks around it:
+/// `[87846.9]` (not from experiment), `142080.75+x` (relative to the offset x).
+fn energy_marks(text: &str) -> (&str, EnergyStatus) {
+    let mut rest = text.trim();
+    let mut status = EnergyStatus::MEASURED;
+    let mut chars = rest.chars().rev();
+    if let (Some(letter), Some('+')) = (chars.next(), chars.next())
+        && letter.is_ascii_lowercase()
+    {
+        status.offset = Some(letter);
+        rest = &rest[..rest.len() - 2];
+    }
+    if let Some(inner) = rest.strip_prefix('[').and_then(|r| r.strip_suffix(']')) {
+        status.bracketed = true;
+        rest = inner;
+    }
+    (rest.trim(), status)
 }
 
 /// Largest level table accepted, in bytes: far above the largest compiled tables
@@ -376,10 +508,6 @@ mod tests {
             e.to_string().starts_with("t.csv:2: column 'energy_cm1'"),
             "{e}"
         );
-        let e = read("He I,1s.2p,3P,1,1.0,0.1,x\n").unwrap_err();
-        assert!(e.to_string().starts_with("t.csv:2: column 'term'"), "{e}");
-        let e = read("He I,1s.2p,3P*,3,1.0,0.1,x\n").unwrap_err();
-        assert!(e.to_string().starts_with("t.csv:2: column 'J'"), "{e}");
         let e = read("He I,1s.2p,3P*,,1.0,0.1,x\n").unwrap_err();
         assert!(e.to_string().starts_with("t.csv:2: column 'J'"), "{e}");
         let e = read("Hx I,1s.2p,3P*,1,1.0,0.1,x\n").unwrap_err();
@@ -408,6 +536,82 @@ mod tests {
             "{e}"
         );
         assert!(read("He I,1s.2p,3P*,1,169086.77,1e150,x\n").is_ok());
+    }
+
+    #[test]
+    fn odd_labels_and_negative_energies_are_kept_with_warnings() {
+        // The published table is the authority (shared/reference-data SOURCES.md:
+        // Al I and Fe I print terms whose parity disagrees with the configuration, N I
+        // and Al I J values the term does not allow): such rows are kept, and a
+        // warning names the line and column. The same holds for a user's table.
+        let t = read(
+            "He I,1s.2p,3P,1,1.0,0.1,x\n\
+             He I,1s.2p,3P*,3,2.0,0.1,x\n\
+             He I,1s.3p,1P*,1,-5.0,0.1,x\n",
+        )
+        .unwrap();
+        assert_eq!(t.levels.len(), 3);
+        let w: Vec<String> = t.warnings.iter().map(|w| w.to_string()).collect();
+        assert_eq!(w.len(), 3, "{w:?}");
+        assert!(
+            w[0].starts_with("t.csv:2: column 'term': term 3P is even"),
+            "{}",
+            w[0]
+        );
+        assert!(
+            w[1].starts_with("t.csv:3: column 'J': J = 3 is not possible"),
+            "{}",
+            w[1]
+        );
+        assert!(
+            w[2].starts_with("t.csv:4: column 'energy_cm1': the energy -5"),
+            "{}",
+            w[2]
+        );
+    }
+
+    #[test]
+    fn energy_marks_of_the_compilations_are_read() {
+        // NIST ASD prints values not from experiment in brackets and values relative
+        // to an unknown offset with +x (N I sextets, shared/reference-data SOURCES.md).
+        let t = read(
+            "N I,2s2.2p3,4S*,3/2,0.000,0,x\n\
+             N I,2s.2p3.(5S*).3s,6S*,5/2,[131000.00]+x,0.01,x\n\
+             N I,2s.2p3.(5S*).3p,6P,3/2,142080.75+x,0.01,x\n\
+             N I,2s2.2p2.(3P).6d,4P,1/2,[107800.1],0.1,x\n",
+        )
+        .unwrap();
+        let status: Vec<EnergyStatus> = t.levels.iter().map(|l| l.energy_status).collect();
+        assert_eq!(status[0], EnergyStatus::MEASURED);
+        assert_eq!((status[1].bracketed, status[1].offset), (true, Some('x')));
+        assert_eq!((status[2].bracketed, status[2].offset), (false, Some('x')));
+        assert_eq!((status[3].bracketed, status[3].offset), (true, None));
+        assert_eq!(t.levels[1].energy_cm1, 131000.0);
+        assert!(status[1].combines_with(status[2]) && !status[0].combines_with(status[2]));
+        assert_eq!(status[1].write("131000.00"), "[131000.00]+x");
+        let column = read_level_table(
+            "species,configuration,term,J,energy_cm1,uncertainty_cm1,source,energy_status\n\
+             N I,2s.2p3.(5S*).3s,6S*,5/2,131000.00,0.01,x,bracketed +x\n\
+             N I,2s2.2p3,4S*,3/2,0.000,0,x,\n"
+                .as_bytes(),
+            "t.csv",
+        )
+        .unwrap();
+        assert_eq!(column.levels[0].energy_status, status[1]);
+        assert_eq!(column.levels[1].energy_status, EnergyStatus::MEASURED);
+        let e = read_level_table(
+            "species,configuration,term,J,energy_cm1,uncertainty_cm1,source,energy_status\n\
+             N I,2s2.2p3,4S*,3/2,0.000,0,x,calculated\n"
+                .as_bytes(),
+            "t.csv",
+        )
+        .unwrap_err();
+        assert!(
+            e.to_string().starts_with("t.csv:2: column 'energy_status'"),
+            "{e}"
+        );
+        assert!(read("N I,2s2.2p3,4S*,3/2,[1.0,0,x\n").is_err());
+        assert!(read("N I,2s2.2p3,4S*,3/2,1.0+,0,x\n").is_err());
     }
 
     #[test]

@@ -43,12 +43,17 @@ pub fn assign_table(report: &AssignReport<'_>, options: &TableOptions) -> String
         Some(unit) => (format!("observed\n{unit}"), format!("predicted\n{unit}")),
         None => ("observed".to_string(), "predicted".to_string()),
     };
-    // A column of predicted strengths (gf of a level model) when any candidate has one.
+    // A column of predicted strengths (gf of a level model) when any candidate of a
+    // model has one, and one of published gA values when any candidate has one.
     let strengths = report.records.iter().any(|r| {
         r.candidate
             .as_ref()
-            .is_some_and(|c| c.predicted_strength.is_some())
+            .is_some_and(|c| c.predicted_strength.is_some() && c.ga_s1.is_none())
     });
+    let published = report
+        .records
+        .iter()
+        .any(|r| r.candidate.as_ref().is_some_and(|c| c.ga_s1.is_some()));
     let mut header = vec![
         "line".to_string(),
         observed_header,
@@ -62,6 +67,9 @@ pub fn assign_table(report: &AssignReport<'_>, options: &TableOptions) -> String
         "alt".to_string(),
         "flags".to_string(),
     ];
+    if published {
+        header.insert(STRENGTH_COLUMN, "gA\ns⁻¹".to_string());
+    }
     if strengths {
         header.insert(STRENGTH_COLUMN, "gf\n(model)".to_string());
     }
@@ -78,6 +86,15 @@ pub fn assign_table(report: &AssignReport<'_>, options: &TableOptions) -> String
             .take_while(|r| r.line == record.line && r.rank.is_some())
             .count();
         let mut cells = row(record, first, alternatives, options.all, unit.is_some());
+        if published {
+            let ga = record
+                .candidate
+                .as_ref()
+                .and_then(|c| c.ga_s1)
+                .map(|v| format!("{v:.1e}"))
+                .unwrap_or_default();
+            cells.insert(STRENGTH_COLUMN, ga);
+        }
         if strengths {
             let gf = record
                 .candidate
@@ -94,12 +111,9 @@ pub fn assign_table(report: &AssignReport<'_>, options: &TableOptions) -> String
     for (index, column) in table.column_iter_mut().enumerate() {
         column.set_padding((u16::from(index > 0), 0));
     }
-    let right = if strengths {
-        [0, 1, 2, 6, 7, 8, 9, 10].as_slice()
-    } else {
-        [0, 1, 2, 6, 7, 8, 9].as_slice()
-    };
-    for &column in right {
+    let extra = usize::from(strengths) + usize::from(published);
+    let right: Vec<usize> = [0, 1, 2].into_iter().chain(6..10 + extra).collect();
+    for &column in &right {
         if let Some(c) = table.column_mut(column) {
             c.set_cell_alignment(CellAlignment::Right);
         }
@@ -264,7 +278,7 @@ fn shortened(lower: &LevelLabel, upper: &LevelLabel) -> (String, String) {
             .iter()
             .filter(|p| match p {
                 ConfigPart::Subshell(s) => !common.contains(&(s.n, s.l)),
-                ConfigPart::Intermediate(_) => true,
+                _ => true,
             })
             .cloned()
             .collect();

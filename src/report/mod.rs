@@ -17,6 +17,7 @@
 mod assign_csv;
 mod assign_json;
 mod assign_table;
+mod compiled;
 mod csv_document;
 mod fit;
 mod model_lines;
@@ -32,6 +33,7 @@ use crate::units::{AirFormula, Medium};
 pub use assign_csv::assign_csv;
 pub use assign_json::assign_json;
 pub use assign_table::{TableOptions, assign_table};
+pub use compiled::{CompiledSpectrum, compiled_spectra_table};
 pub use fit::{FitReport, fit_json, fit_table};
 pub use model_lines::{
     DipoleValue, LINE_COLUMNS, LineRow, LineSelection, LinesReport, lines_csv, lines_json,
@@ -202,14 +204,29 @@ impl AssignReport<'_> {
     pub fn description(&self) -> Vec<String> {
         let mut lines = vec![format!("Input: {}.", self.input.sentence())];
         for s in self.species {
-            lines.push(format!(
-                "Predictions, {}: {} ({} levels, {} lines); {}.",
+            let mut line = format!(
+                "Predictions, {}: {} ({} levels, {} lines",
                 s.species,
                 s.origin,
                 s.levels,
                 s.ls_lines + s.parity_and_j_lines,
-                s.rules_sentence()
-            ));
+            );
+            if s.lines_with_transition_probability > 0 {
+                line.push_str(&format!(
+                    ", {} with a published transition probability",
+                    s.lines_with_transition_probability
+                ));
+            }
+            line.push_str(&format!("); {}.", s.rules_sentence()));
+            for note in &s.notes {
+                let mut chars = note.chars();
+                let first: String = chars
+                    .next()
+                    .map(|c| c.to_uppercase().collect())
+                    .unwrap_or_default();
+                line.push_str(&format!(" {first}{}.", chars.as_str()));
+            }
+            lines.push(line);
         }
         lines.push(format!(
             "Matching: candidates within {} combined standard uncertainties; ranked by \

@@ -12,7 +12,9 @@ use serde::Serialize;
 use super::orbital::{Determinant, SpinOrbitalLayout};
 use super::shell::ShellTerms;
 use crate::angular::clebsch_gordan;
-use crate::notation::{ConfigPart, Configuration, Intermediate, LsTerm, Parity, Subshell, Term};
+use crate::notation::{
+    ConfigPart, Configuration, Intermediate, LsTerm, Parity, Subshell, Term, TermMarks,
+};
 
 /// A sparse vector over determinants, sorted by determinant.
 pub type DeterminantVector = Vec<(Determinant, f64)>;
@@ -265,6 +267,7 @@ impl Coupler {
                 l,
                 parity,
                 index: final_index,
+                marks: TermMarks::default(),
             },
             seniorities,
         }
@@ -393,6 +396,7 @@ fn intermediate(l: u32, two_s: u32, parity: Parity, index: Option<u32>) -> Confi
             l,
             parity,
             index,
+            marks: TermMarks::default(),
         }),
         j: None,
     })

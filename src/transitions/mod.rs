@@ -59,6 +59,7 @@ mod spectrum;
 
 pub use operator::{DipoleOperator, DipoleProgress, IntegralUse, JPair};
 pub use predictions::model_predictions;
+pub use rates::gf_from_ga;
 pub use spectrum::{LabelledLevel, ModelLine, ModelSpectrum, model_spectrum, unique_labels};
 
 pub use crate::structure::DipoleIntegral;

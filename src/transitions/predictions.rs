@@ -32,6 +32,7 @@ pub fn model_predictions(
             energy_cm1: l.energy_cm1,
             uncertainty_cm1: 0.0,
             source: format!("model {origin}"),
+            energy_status: Default::default(),
         })
         .collect();
     let strongest = spectrum
@@ -52,6 +53,9 @@ pub fn model_predictions(
             rules: MODEL_RULES,
             flags: l.flags,
             relative_strength: Some(l.gf),
+            transition_probability: None,
+            bracketed_level: false,
+            listing: Default::default(),
         })
         .collect();
     Predictions::new(

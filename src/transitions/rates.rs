@@ -58,10 +58,31 @@ pub fn transition_probability(strength: f64, wavenumber_cm1: f64, g_upper: f64) 
     GA_PER_WAVENUMBER_CUBED_STRENGTH * wavenumber_cm1.powi(3) * strength / g_upper
 }
 
+/// gf of a line from g_upper·A (s⁻¹) at vacuum wavenumber `wavenumber_cm1`: the
+/// ratio of the two formulas of the module documentation, gf = gA · (8π² m_e c a₀² /
+/// 3h) / (64π⁴ e² a₀² / 3h) / σ² = 1.4992 cm⁻²·s · gA / σ² (Wiese & Fuhr 2009, J. Phys.
+/// Chem. Ref. Data 38, 565, eq. 3, with λ = 1/σ).
+pub fn gf_from_ga(ga_s1: f64, wavenumber_cm1: f64) -> f64 {
+    ga_s1 * GF_PER_WAVENUMBER_STRENGTH
+        / (GA_PER_WAVENUMBER_CUBED_STRENGTH * wavenumber_cm1 * wavenumber_cm1)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
     use crate::units::constants::HARTREE_CM1;
+
+    #[test]
+    fn gf_from_ga_has_the_familiar_coefficient() {
+        // gf = 1.4992e-16 λ²[Å] g_k A_ki (Wiese & Fuhr 2009, eq. 3; NIST ASD's line
+        // data help uses the same factor): at λ = 5000 Å, gA = 1e8 s⁻¹ gives 0.3748.
+        let sigma = 1e8 / 5000.0;
+        let gf = gf_from_ga(1e8, sigma);
+        assert!(
+            (gf / (1.4992e-16 * 5000.0f64.powi(2) * 1e8) - 1.0).abs() < 1e-4,
+            "{gf}"
+        );
+    }
 
     #[test]
     fn familiar_numeric_forms() {

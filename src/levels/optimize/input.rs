@@ -315,9 +315,14 @@ impl Fields<'_> {
         if parts.iter().all(|p| p.is_empty()) {
             return Ok(None);
         }
-        LevelLabel::from_fields(parts[0], parts[1], parts[2])
-            .map(Some)
-            .map_err(|e| self.bad(&column(e.part), e.problem))
+        let label = LevelLabel::from_fields(parts[0], parts[1], parts[2])
+            .map_err(|e| self.bad(&column(e.part), e.problem))?;
+        // A level energy is fitted to a consistent label only: a term whose parity
+        // is not the configuration's, or a J the term does not allow, is refused here.
+        match label.warnings().into_iter().next() {
+            Some(e) => Err(self.bad(&column(e.part), e.problem)),
+            None => Ok(Some(label)),
+        }
     }
 
     fn count(&self, name: &str) -> Result<Option<usize>, ClassifiedReadError> {
