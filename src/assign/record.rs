@@ -200,7 +200,7 @@ pub fn records(
                     upper_energy_cm1: upper.energy_cm1,
                     predicted_wavenumber_cm1: line.wavenumber_cm1,
                     predicted_uncertainty_cm1: line.uncertainty_cm1.hypot(model_u),
-                    predicted_in_given_unit: in_given_unit(
+                    predicted_in_given_unit: predicted_in_given_unit(
                         line.wavenumber_cm1,
                         &observed.given,
                         list.air_formula,
@@ -219,8 +219,9 @@ pub fn records(
     out
 }
 
-/// A vacuum wavenumber in the unit and medium of `given`.
-fn in_given_unit(
+/// A vacuum wavenumber `sigma_cm1` in the unit and medium of `given` (converted to
+/// air with `formula`); `None` when it cannot be expressed there.
+pub fn predicted_in_given_unit(
     sigma_cm1: f64,
     given: &GivenPosition,
     formula: crate::units::AirFormula,

@@ -1,4 +1,4 @@
-//! The reader: find the header, read the rows, sort by wavenumber.
+//! The reader: find the header, read the rows.
 
 use std::io::BufRead;
 
@@ -8,7 +8,7 @@ use super::header::Layout;
 use super::options::ReadOptions;
 use super::physical::{Next, PhysicalLines};
 use super::row::convert_row;
-use super::{LineList, ObservedLine, SkippedRow};
+use super::{LineList, SkippedRow};
 use crate::location::Location;
 
 /// How many skipped rows [`LineList::skipped`] keeps in detail; the rest are only
@@ -18,7 +18,7 @@ pub const SKIPPED_DETAIL_LIMIT: usize = 500;
 /// Read a measured line list from `reader`; `source` names it in messages (a path
 /// or `<stdin>`). The format is described in the [module documentation](super).
 ///
-/// Returns the lines sorted by increasing vacuum wavenumber. Errors name the file,
+/// Returns the lines in input order. Errors name the file,
 /// the line and the column; with [`ReadOptions::skip_bad`] bad data rows are left
 /// out and listed instead.
 pub fn read_line_list(
@@ -121,7 +121,6 @@ pub fn read_line_list(
             skipped: skipped_total,
         });
     }
-    sort_by_wavenumber(&mut lines);
     let extra_columns = layout
         .extras
         .iter()
@@ -138,41 +137,6 @@ pub fn read_line_list(
     })
 }
 
-/// Sort `lines` by increasing wavenumber, keeping the input order among equals (the
-/// order a stable sort gives).
-///
-/// Lists sorted by wavenumber, or by wavelength (strictly decreasing wavenumber), are
-/// common and take one pass. Otherwise sorting the ~90-byte records themselves costs
-/// more than the reading; instead (wavenumber, index) keys are sorted, the index
-/// breaking ties so that the order is the stable one, and each record is then moved
-/// once into place. The keys compare the wavenumbers' bit patterns, which order
-/// finite positive doubles as their values (IEEE 754), and every wavenumber here is
-/// finite and positive.
-fn sort_by_wavenumber(lines: &mut Vec<ObservedLine>) {
-    let increasing = |pair: &[ObservedLine]| pair[0].wavenumber_cm1 <= pair[1].wavenumber_cm1;
-    let strictly_decreasing =
-        |pair: &[ObservedLine]| pair[0].wavenumber_cm1 > pair[1].wavenumber_cm1;
-    if lines.windows(2).all(increasing) {
-        return;
-    }
-    if lines.windows(2).all(strictly_decreasing) {
-        lines.reverse();
-        return;
-    }
-    let mut keys: Vec<(u64, usize)> = lines
-        .iter()
-        .enumerate()
-        .map(|(index, line)| (line.wavenumber_cm1.to_bits(), index))
-        .collect();
-    keys.sort_unstable();
-    let mut slots: Vec<Option<ObservedLine>> =
-        std::mem::take(lines).into_iter().map(Some).collect();
-    *lines = keys
-        .into_iter()
-        .filter_map(|(_, index)| slots.get_mut(index).and_then(Option::take))
-        .collect();
-}
-
 fn io_error(source: &str, line: usize, error: std::io::Error) -> LineListError {
     LineListError::Io {
         location: Location::line(source, line),
@@ -186,57 +150,4 @@ fn is_blank_or_comment(line: &[u8]) -> bool {
     line.trim_ascii_start()
         .first()
         .is_none_or(|&byte| byte == b'#')
-}
-
-#[cfg(test)]
-mod tests {
-    use proptest::prelude::*;
-
-    use super::*;
-    use crate::linelist::GivenPosition;
-
-    fn line(row: usize, wavenumber_cm1: f64) -> ObservedLine {
-        ObservedLine {
-            row,
-            source_line: row,
-            given: GivenPosition::Wavenumber {
-                value: wavenumber_cm1,
-            },
-            wavenumber_cm1,
-            uncertainty_cm1: 1.0,
-            intensity: None,
-            extra: Vec::new(),
-        }
-    }
-
-    proptest! {
-        #[test]
-        fn the_fast_sort_matches_the_standard_stable_sort(
-            // Few distinct values, so that ties are common.
-            values in prop::collection::vec(0u8..20, 0..200)
-        ) {
-            let mut lines: Vec<ObservedLine> = values
-                .iter()
-                .enumerate()
-                .map(|(i, &v)| line(i + 1, f64::from(v)))
-                .collect();
-            let mut reference = lines.clone();
-            reference.sort_by(|a, b| a.wavenumber_cm1.total_cmp(&b.wavenumber_cm1));
-            sort_by_wavenumber(&mut lines);
-            prop_assert_eq!(lines, reference);
-        }
-    }
-
-    #[test]
-    fn a_list_by_increasing_wavelength_with_ties_stays_stable() {
-        // Decreasing wavenumber with a tie: reversing would swap rows 2 and 3.
-        let mut lines = vec![line(1, 30.0), line(2, 20.0), line(3, 20.0), line(4, 10.0)];
-        sort_by_wavenumber(&mut lines);
-        let rows: Vec<usize> = lines.iter().map(|l| l.row).collect();
-        assert_eq!(rows, vec![4, 2, 3, 1]);
-        let mut lines = vec![line(1, 30.0), line(2, 20.0), line(3, 10.0)];
-        sort_by_wavenumber(&mut lines);
-        let rows: Vec<usize> = lines.iter().map(|l| l.row).collect();
-        assert_eq!(rows, vec![3, 2, 1]);
-    }
 }

@@ -1,4 +1,4 @@
-//! Tests of the line-list reader as a whole: formats, media, uncertainties, sorting,
+//! Tests of the line-list reader as a whole: formats, media, uncertainties, order,
 //! every kind of bad input with its location, and skipping.
 
 use std::io::{self, BufReader, Read};
@@ -69,9 +69,9 @@ fn air_wavelengths_give_the_level_differences_of_the_reference_table() {
     // relative 0.0002/3296 = 6e-8, so σ must agree to 1e-7.
     let list = read(HE_I_CSV);
     assert_eq!(list.lines.len(), 3);
-    // Sorted by increasing wavenumber: the input order reversed.
+    // In input order.
     let rows: Vec<usize> = list.lines.iter().map(|line| line.row).collect();
-    assert_eq!(rows, vec![3, 2, 1]);
+    assert_eq!(rows, vec![1, 2, 3]);
     for line in &list.lines {
         let (lambda, lower, upper) = HE_I_RITZ[line.row - 1];
         assert_relative(line.wavenumber_cm1, upper - lower, 1e-7);
@@ -131,7 +131,7 @@ fn bom_crlf_comments_and_blank_lines_are_accepted() {
         .iter()
         .map(|line| (line.row, line.source_line))
         .collect();
-    // Sorted by wavenumber: 640 nm (row 1, line 6) before 585 nm (row 2, line 8).
+    // In input order: 640 nm (row 1, line 6), then 585 nm (row 2, line 8).
     assert_eq!(found, vec![(1, 6), (2, 8)]);
     assert!(list.extra_columns.is_empty());
     // The BOM is not part of the first column's name, and CRLF is not in the last.
@@ -785,8 +785,8 @@ proptest! {
         };
         let text = format!("{header}\n{body}");
         if let Ok(list) = read_line_list(text.as_bytes(), "fuzz", &options) {
-            // Whatever is read is sorted, finite and positive.
-            prop_assert!(list.lines.windows(2).all(|w| w[0].wavenumber_cm1 <= w[1].wavenumber_cm1));
+            // Whatever is read is in input order, finite and positive.
+            prop_assert!(list.lines.windows(2).all(|w| w[0].row < w[1].row));
             for line in &list.lines {
                 prop_assert!(line.wavenumber_cm1.is_finite() && line.wavenumber_cm1 > 0.0);
                 prop_assert!(line.uncertainty_cm1.is_finite() && line.uncertainty_cm1 > 0.0);
