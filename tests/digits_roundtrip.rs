@@ -137,7 +137,10 @@ fn full_precision_table(report: &OptimizationReport) -> String {
 }
 
 fn fit(levels: &std::path::Path, weights: &str) -> serde_json::Value {
-    let model = concat!(env!("CARGO_MANIFEST_DIR"), "/examples/level-models/he-1snl-fit.toml");
+    let model = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/examples/level-models/he-1snl-fit.toml"
+    );
     let out = Command::new(env!("CARGO_BIN_EXE_termsight"))
         .args(["fit", model, "--levels"])
         .arg(levels)
@@ -173,7 +176,10 @@ fn fit_gives_the_same_parameters_from_the_written_levels() {
         .iter()
         .map(|l| l.label.to_string())
         .collect();
-    let helium = EMBEDDED_TABLES.iter().find(|t| t.species == "He I").unwrap();
+    let helium = EMBEDDED_TABLES
+        .iter()
+        .find(|t| t.species == "He I")
+        .unwrap();
     let mut others = String::new();
     for level in helium.load().unwrap().levels {
         if !optimised_labels.contains(&level.label.to_string()) {

@@ -401,7 +401,11 @@ fn wavenumber_order(lines: &[ObservedLine]) -> Vec<usize> {
     // The bits of a double, flipped so that unsigned order is f64::total_cmp's.
     let key = |x: f64| {
         let bits = x.to_bits();
-        if bits >> 63 == 1 { !bits } else { bits | 1 << 63 }
+        if bits >> 63 == 1 {
+            !bits
+        } else {
+            bits | 1 << 63
+        }
     };
     let mut keys: Vec<(u64, usize)> = lines
         .iter()

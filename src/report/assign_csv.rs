@@ -4,9 +4,7 @@ use std::io::{self, Write};
 
 use super::AssignReport;
 use super::assign_rows::{Rendered, Row, given_parts};
-use super::digits::{
-    push_integer, push_shortest, push_uncertainty, push_wavenumber, round_fixed,
-};
+use super::digits::{push_fixed, push_integer, push_shortest, push_uncertainty, push_wavenumber};
 
 /// How one column is written: the field of a row, appended to the buffer (text
 /// fields quoted where CSV needs it).
@@ -84,7 +82,7 @@ const COLUMNS: [Column; 27] = [
     },
     Column {
         name: "lower_energy_cm1",
-        write: |r, out| candidate_wavenumber(r, out, |c| c.lower.energy_cm1),
+        write: |r, out| candidate_bytes(r, out, |c| &c.lower.energy_text),
     },
     Column {
         name: "upper_configuration",
@@ -100,7 +98,7 @@ const COLUMNS: [Column; 27] = [
     },
     Column {
         name: "upper_energy_cm1",
-        write: |r, out| candidate_wavenumber(r, out, |c| c.upper.energy_cm1),
+        write: |r, out| candidate_bytes(r, out, |c| &c.upper.energy_text),
     },
     Column {
         name: "predicted_wavenumber_cm1",
@@ -114,7 +112,7 @@ const COLUMNS: [Column; 27] = [
         name: "predicted_in_given_unit",
         write: |r, out| {
             if let Some((value, decimals)) = r.predicted_in_given_unit() {
-                push_shortest(out, round_fixed(value, decimals));
+                push_fixed(out, value, decimals);
             }
         },
     },
@@ -175,6 +173,16 @@ fn candidate_text(
     }
 }
 
+fn candidate_bytes(
+    r: &Row<'_>,
+    out: &mut Vec<u8>,
+    bytes: for<'c> fn(&'c CandidateRow<'c>) -> &'c [u8],
+) {
+    if let Some(c) = &r.candidate {
+        out.extend_from_slice(bytes(c));
+    }
+}
+
 fn candidate_wavenumber(r: &Row<'_>, out: &mut Vec<u8>, value: fn(&CandidateRow<'_>) -> f64) {
     if let Some(c) = &r.candidate {
         push_wavenumber(out, value(c));
@@ -190,7 +198,10 @@ fn candidate_uncertainty(r: &Row<'_>, out: &mut Vec<u8>, value: fn(&CandidateRow
 /// Append a text field, quoted when it holds a comma, a quote or a line end (the
 /// quotes inside doubled), as RFC 4180 has it.
 pub(super) fn push_field(out: &mut Vec<u8>, text: &str) {
-    if !text.bytes().any(|b| matches!(b, b',' | b'"' | b'\n' | b'\r')) {
+    if !text
+        .bytes()
+        .any(|b| matches!(b, b',' | b'"' | b'\n' | b'\r'))
+    {
         out.extend_from_slice(text.as_bytes());
         return;
     }
@@ -281,6 +292,9 @@ mod tests {
         push_field(&mut out, "say \"x\"");
         out.push(b' ');
         push_field(&mut out, "plain");
-        assert_eq!(String::from_utf8(out).unwrap(), "\"a,b\" \"say \"\"x\"\"\" plain");
+        assert_eq!(
+            String::from_utf8(out).unwrap(),
+            "\"a,b\" \"say \"\"x\"\"\" plain"
+        );
     }
 }

@@ -131,13 +131,12 @@ fn candidate<'a>(row: &Row<'a>) -> Option<CandidateJson<'a>> {
     })
 }
 
-/// Append the JSON object of one observed line, indented for its place in the
+/// Append the JSON object of one observed line on a line of its own in the
 /// `lines` array, after a comma unless it is the first.
 fn push_line<'a>(
     rendered: &'a Rendered<'a>,
     assignment: &'a LineAssignment,
     first: bool,
-    scratch: &mut Vec<u8>,
     out: &mut Vec<u8>,
 ) {
     let report = rendered.report;
@@ -163,25 +162,18 @@ fn push_line<'a>(
             .filter_map(|row| candidate(&row))
             .collect(),
     };
-    scratch.clear();
+    out.extend_from_slice(if first { b"\n    " } else { b",\n    " });
     // Serialising strings and numbers into memory cannot fail; a non-finite
     // number becomes null.
-    let _ = serde_json::to_writer_pretty(&mut *scratch, &object);
-    out.extend_from_slice(if first { b"\n    " } else { b",\n    " });
-    for &byte in scratch.iter() {
-        out.push(byte);
-        if byte == b'\n' {
-            // Two levels deeper: the object sits in the `lines` array.
-            out.extend_from_slice(b"    ");
-        }
-    }
+    let _ = serde_json::to_writer(&mut *out, &object);
 }
 
 /// Write the JSON of an assign run to `out`: `input`, `matching` (settings),
 /// `species` (origin and rules per species), `counts`, and `lines`, one object per
 /// observed line in input order with its ranked `candidates` (empty when
-/// unassigned). Labels, units, flags and the digits of numbers are those of the
-/// CSV.
+/// unassigned), each on a line of its own (so that a million lines stay a file of
+/// manageable size and can be read line by line). Labels, units, flags and the
+/// digits of numbers are those of the CSV.
 pub fn write_assign_json<W: Write + ?Sized>(
     report: &AssignReport<'_>,
     out: &mut W,
@@ -217,18 +209,13 @@ pub fn write_assign_json<W: Write + ?Sized>(
     let rendered = Rendered::new(report);
     rendered.write_lines(out, |rendered, assignment, buffer| {
         let is_first = first.is_some_and(|f| std::ptr::eq(f, assignment));
-        SCRATCH.with_borrow_mut(|scratch| push_line(rendered, assignment, is_first, scratch, buffer));
+        push_line(rendered, assignment, is_first, buffer);
     })?;
     if report.assignments.is_empty() {
         out.write_all(b"]\n}\n")
     } else {
         out.write_all(b"\n  ]\n}\n")
     }
-}
-
-thread_local! {
-    /// The serialised object of one line before it is indented, one per thread.
-    static SCRATCH: std::cell::RefCell<Vec<u8>> = const { std::cell::RefCell::new(Vec::new()) };
 }
 
 /// [`write_assign_json`] into memory.

@@ -5,7 +5,7 @@
 use rayon::prelude::*;
 
 use super::AssignReport;
-use super::digits::{WAVENUMBER_DECIMALS, wavelength_decimals};
+use super::digits::{WAVENUMBER_DECIMALS, push_wavenumber, wavelength_decimals};
 use crate::assign::{Candidate, Flag, LineAssignment, predicted_in_given_unit};
 use crate::levels::{Level, PredictedLine};
 use crate::linelist::{GivenPosition, ObservedLine};
@@ -31,6 +31,8 @@ pub(super) struct LevelText {
     pub j: String,
     /// The energy, cm⁻¹.
     pub energy_cm1: f64,
+    /// The energy as the CSV writes it (to 10⁻⁸ cm⁻¹).
+    pub energy_text: Vec<u8>,
 }
 
 impl LevelText {
@@ -41,6 +43,11 @@ impl LevelText {
             term: level.label.term.to_string(),
             j: level.label.j.to_string(),
             energy_cm1: level.energy_cm1,
+            energy_text: {
+                let mut text = Vec::new();
+                push_wavenumber(&mut text, level.energy_cm1);
+                text
+            },
         }
     }
 }
@@ -71,15 +78,13 @@ impl<'a> Rendered<'a> {
         let observed = self.report.list.lines.get(assignment.observed);
         let unassigned = assignment.candidates.is_empty();
         let air_formula = self.report.list.air_formula;
-        let first = observed
-            .filter(|_| unassigned)
-            .map(|observed| Row {
-                observed,
-                assignment,
-                rank: None,
-                candidate: None,
-                air_formula,
-            });
+        let first = observed.filter(|_| unassigned).map(|observed| Row {
+            observed,
+            assignment,
+            rank: None,
+            candidate: None,
+            air_formula,
+        });
         let candidates = observed.into_iter().flat_map(move |observed| {
             assignment
                 .candidates
@@ -164,7 +169,14 @@ pub(super) struct CandidateRow<'a> {
 impl CandidateRow<'_> {
     /// The prediction's uncertainty with the model uncertainty, cm⁻¹.
     pub fn predicted_uncertainty_cm1(&self) -> f64 {
-        self.line.uncertainty_cm1.hypot(self.model_uncertainty_cm1)
+        let (a, b) = (self.line.uncertainty_cm1, self.model_uncertainty_cm1);
+        // √(a² + b²) directly where it cannot overflow (hypot costs several times
+        // more in this loop).
+        if a.max(b) < 1e150 {
+            (a * a + b * b).sqrt()
+        } else {
+            a.hypot(b)
+        }
     }
 }
 

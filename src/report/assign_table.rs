@@ -360,51 +360,56 @@ impl<'a> Layout<'a> {
 
 impl<'a> Layout<'a> {
     fn new(report: &'a AssignReport<'a>, options: &TableOptions) -> Layout<'a> {
-    let lines = &report.list.lines;
-    let describe = |given: &GivenPosition| match given {
-        GivenPosition::Wavelength { unit, medium, .. } => format!("{medium} λ, {unit}"),
-        GivenPosition::Wavenumber { .. } => "σ, cm⁻¹".to_string(),
-    };
-    let common_unit = lines.first().map(|l| describe(&l.given)).filter(|first| {
-        lines
-            .par_iter()
-            .all(|l| match (&l.given, lines.first().map(|f| &f.given)) {
-                (
-                    GivenPosition::Wavelength { unit, medium, .. },
-                    Some(GivenPosition::Wavelength {
-                        unit: u, medium: m, ..
-                    }),
-                ) => unit == u && medium == m,
-                (GivenPosition::Wavenumber { .. }, Some(GivenPosition::Wavenumber { .. })) => true,
-                _ => false,
+        let lines = &report.list.lines;
+        let describe = |given: &GivenPosition| match given {
+            GivenPosition::Wavelength { unit, medium, .. } => format!("{medium} λ, {unit}"),
+            GivenPosition::Wavenumber { .. } => "σ, cm⁻¹".to_string(),
+        };
+        let common_unit = lines.first().map(|l| describe(&l.given)).filter(|first| {
+            lines
+                .par_iter()
+                .all(|l| match (&l.given, lines.first().map(|f| &f.given)) {
+                    (
+                        GivenPosition::Wavelength { unit, medium, .. },
+                        Some(GivenPosition::Wavelength {
+                            unit: u, medium: m, ..
+                        }),
+                    ) => unit == u && medium == m,
+                    (GivenPosition::Wavenumber { .. }, Some(GivenPosition::Wavenumber { .. })) => {
+                        true
+                    }
+                    _ => false,
+                })
+                && !first.is_empty()
+        });
+        let predictions = report.predictions;
+        let strengths = report.assignments.par_iter().any(|a| {
+            a.candidates.iter().any(|c| {
+                predictions
+                    .lines()
+                    .get(c.prediction)
+                    .is_some_and(|l| l.relative_strength.is_some())
             })
-            && !first.is_empty()
-    });
-    let predictions = report.predictions;
-    let strengths = report.assignments.par_iter().any(|a| {
-        a.candidates.iter().any(|c| {
-            predictions
-                .lines()
-                .get(c.prediction)
-                .is_some_and(|l| l.relative_strength.is_some())
-        })
-    });
-    Layout {
-        rendered: Rendered::new(report),
-        options: *options,
-        common_unit,
-        strengths,
-        labels: (0..predictions.lines().len())
-            .map(|_| OnceLock::new())
-            .collect(),
-    }
+        });
+        Layout {
+            rendered: Rendered::new(report),
+            options: *options,
+            common_unit,
+            strengths,
+            labels: (0..predictions.lines().len())
+                .map(|_| OnceLock::new())
+                .collect(),
+        }
     }
 }
 
 /// The table rows by the writer of this module and by `comfy-table` without
 /// wrapping, for the test that they agree.
 #[cfg(test)]
-pub(super) fn by_both_writers(report: &AssignReport<'_>, options: &TableOptions) -> (String, String) {
+pub(super) fn by_both_writers(
+    report: &AssignReport<'_>,
+    options: &TableOptions,
+) -> (String, String) {
     let layout = Layout::new(report, options);
     let mut ours = Vec::new();
     let _ = layout.write(&mut ours);
@@ -632,7 +637,13 @@ mod tests {
     #[test]
     fn fixed_decimals_print_as_std_fmt_does() {
         // std::fmt is the reference for these (exact decimal rounding).
-        for (value, decimals) in [(1.005, 2), (-0.5, 2), (2.5, 0), (-0.00004, 4), (123.456789, 5)] {
+        for (value, decimals) in [
+            (1.005, 2),
+            (-0.5, 2),
+            (2.5, 0),
+            (-0.00004, 4),
+            (123.456789, 5),
+        ] {
             for signed in [false, true] {
                 let mut out = Vec::new();
                 push_decimals(&mut out, value, decimals, signed);

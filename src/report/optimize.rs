@@ -7,8 +7,7 @@ use serde::Serialize;
 
 use super::csv_document::csv_document;
 use super::digits::{
-    Fixed, Uncertainty, WAVENUMBER_DECIMALS, push_uncertainty, push_wavenumber, round_fixed,
-    wavelength_decimals,
+    Fixed, Uncertainty, WAVENUMBER_DECIMALS, push_uncertainty, push_wavenumber, wavelength_decimals,
 };
 use crate::levels::LEVEL_COLUMNS;
 use crate::levels::optimize::{
@@ -71,7 +70,7 @@ fn three_digits(value: f64) -> String {
 /// A wavelength in nm at the fixed resolution of 10⁻¹¹ nm.
 fn wavelength_text(value_nm: f64) -> String {
     let mut out = Vec::new();
-    super::digits::push_shortest(&mut out, round_fixed(value_nm, wavelength_decimals(1.0)));
+    super::digits::push_fixed(&mut out, value_nm, wavelength_decimals(1.0));
     String::from_utf8(out).unwrap_or_default()
 }
 

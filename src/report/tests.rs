@@ -114,8 +114,22 @@ fn assert_records_read_back(
     assert_eq!(back.len(), expected.len());
     for (a, b) in back.iter().zip(expected) {
         assert_eq!(
-            (a.line, a.given, a.observed_intensity, a.rank, &a.flags, &a.extra),
-            (b.line, b.given, b.observed_intensity, b.rank, &b.flags, &b.extra)
+            (
+                a.line,
+                a.given,
+                a.observed_intensity,
+                a.rank,
+                &a.flags,
+                &a.extra
+            ),
+            (
+                b.line,
+                b.given,
+                b.observed_intensity,
+                b.rank,
+                &b.flags,
+                &b.extra
+            )
         );
         position(a.observed_wavenumber_cm1, b.observed_wavenumber_cm1, 1e-8);
         three_digits(a.observed_uncertainty_cm1, b.observed_uncertainty_cm1);
@@ -270,11 +284,23 @@ fn json_numbers_are_those_of_the_csv() {
     };
     let line = &json["lines"][0];
     let candidate = &line["candidates"][0];
-    assert_eq!(line["observed_wavenumber_cm1"], field("observed_wavenumber_cm1"));
-    assert_eq!(line["observed_uncertainty_cm1"], field("observed_uncertainty_cm1"));
+    assert_eq!(
+        line["observed_wavenumber_cm1"],
+        field("observed_wavenumber_cm1")
+    );
+    assert_eq!(
+        line["observed_uncertainty_cm1"],
+        field("observed_uncertainty_cm1")
+    );
     assert_eq!(candidate["lower"]["energy_cm1"], field("lower_energy_cm1"));
-    assert_eq!(candidate["predicted_wavenumber_cm1"], field("predicted_wavenumber_cm1"));
-    assert_eq!(candidate["predicted_in_given_unit"], field("predicted_in_given_unit"));
+    assert_eq!(
+        candidate["predicted_wavenumber_cm1"],
+        field("predicted_wavenumber_cm1")
+    );
+    assert_eq!(
+        candidate["predicted_in_given_unit"],
+        field("predicted_in_given_unit")
+    );
     assert_eq!(candidate["deviation_cm1"], field("deviation_cm1"));
     assert_eq!(candidate["deviation_sigma"], field("deviation_sigma"));
     assert_eq!(candidate["chance_probability"], field("chance_probability"));
