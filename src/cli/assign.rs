@@ -206,6 +206,12 @@ pub fn run(args: AssignArgs) -> Result<(), CliError> {
         }
     };
     let assignments = assign_lines_with_progress(&list.lines, &predictions, &config, &mut progress);
+    if total > PROGRESS_ABOVE {
+        let _ = writeln!(
+            io::stderr(),
+            "termsight: matched all {total} lines; writing the results"
+        );
+    }
     let input = InputSummary::from_line_list(&list);
     let report = AssignReport {
         input: &input,

@@ -1,4 +1,6 @@
-//! The reader: find the header, read the rows.
+//! The reader: find the header, read the rows (the bytes in one stream, their
+//! conversion in parallel batches; the result and the errors are those of reading
+//! line by line).
 
 use std::io::BufRead;
 
@@ -7,9 +9,27 @@ use super::fields::{Delimiter, Splitter};
 use super::header::Layout;
 use super::options::ReadOptions;
 use super::physical::{Next, PhysicalLines};
-use super::row::convert_row;
+use super::row::{ConvertedRow, RowError, convert_row};
 use super::{LineList, SkippedRow};
 use crate::location::Location;
+use rayon::prelude::*;
+
+/// Data lines read before they are converted, in parallel tasks of at least
+/// [`LINES_PER_TASK`] lines.
+const LINES_PER_BATCH: usize = 1 << 14;
+
+/// Lines converted by one task.
+const LINES_PER_TASK: usize = 1 << 10;
+
+/// A data line read and not yet converted.
+struct Pending {
+    /// 1-based data row.
+    row: usize,
+    /// Physical line number.
+    line: usize,
+    /// Where its bytes are in the batch; `None` for a line over the length limit.
+    bytes: Option<std::ops::Range<usize>>,
+}
 
 /// How many skipped rows [`LineList::skipped`] keeps in detail; the rest are only
 /// counted in [`LineList::skipped_total`], so that memory stays bounded.
@@ -33,7 +53,7 @@ pub fn read_line_list(
         problem,
     };
 
-    let (layout, mut splitter) = loop {
+    let (layout, splitter) = loop {
         let next = physical
             .next_line(&mut buf, false)
             .map_err(|error| io_error(source, physical.number() + 1, error))?;
@@ -62,56 +82,107 @@ pub fn read_line_list(
         break (Layout::from_header(&fields, source, line)?, splitter);
     };
 
+    let delimiter = splitter.delimiter();
+    drop(splitter);
     let mut lines = Vec::new();
     let mut skipped = Vec::new();
     let mut skipped_total = 0;
     let mut medium_assumed = false;
     let mut row = 0;
-    loop {
-        let next = physical
-            .next_line(&mut buf, options.skip_bad)
-            .map_err(|error| io_error(source, physical.number() + 1, error))?;
-        let line = physical.number();
-        let outcome = match next {
-            Next::End => break,
-            Next::Line if is_blank_or_comment(&buf) => continue,
-            Next::TooLong => {
-                row += 1;
-                let limit = options.max_line_bytes;
-                Err((None, LineProblem::TooLong { limit }))
-            }
-            Next::Line => {
-                row += 1;
-                match splitter.delimiter().text_of(&buf) {
-                    None => Err((None, LineProblem::InvalidUtf8)),
-                    Some(text) => match splitter.split(text) {
-                        Err(problem) => Err((None, problem)),
-                        Ok(fields) => convert_row(&fields, &layout, options, row, line),
-                    },
+    let mut batch: Vec<Pending> = Vec::with_capacity(LINES_PER_BATCH);
+    let mut bytes: Vec<u8> = Vec::new();
+    let mut finished = false;
+    while !finished {
+        // Read a batch of data lines (sequential: the input is one stream); an I/O
+        // error is reported after the rows before it, as a line-by-line reader would.
+        batch.clear();
+        bytes.clear();
+        let mut read_error = None;
+        while batch.len() < LINES_PER_BATCH {
+            let next = match physical.next_line(&mut buf, options.skip_bad) {
+                Ok(next) => next,
+                Err(error) => {
+                    read_error = Some(io_error(source, physical.number() + 1, error));
+                    break;
                 }
-            }
-        };
-        match outcome {
-            Ok(converted) => {
-                medium_assumed |= converted.medium_assumed;
-                lines.push(converted.line);
-            }
-            Err((column, problem)) => {
-                let mut location = Location::line(source, line);
-                if let Some(column) = column {
-                    location = location.column(layout.name(column));
+            };
+            let line = physical.number();
+            match next {
+                Next::End => {
+                    finished = true;
+                    break;
                 }
-                if !options.skip_bad {
-                    return Err(LineListError::BadLine { location, problem });
+                Next::Line if is_blank_or_comment(&buf) => {}
+                Next::TooLong => {
+                    row += 1;
+                    batch.push(Pending {
+                        row,
+                        line,
+                        bytes: None,
+                    });
+                    if !options.skip_bad {
+                        // Reading stopped inside the line: nothing after it is read.
+                        break;
+                    }
                 }
-                skipped_total += 1;
-                if skipped.len() < SKIPPED_DETAIL_LIMIT {
-                    skipped.push(SkippedRow {
-                        location,
-                        reason: problem.to_string(),
+                Next::Line => {
+                    row += 1;
+                    let start = bytes.len();
+                    bytes.extend_from_slice(&buf);
+                    batch.push(Pending {
+                        row,
+                        line,
+                        bytes: Some(start..bytes.len()),
                     });
                 }
             }
+        }
+        // Convert the batch on every core, in order.
+        let outcomes: Vec<Result<ConvertedRow, RowError>> = batch
+            .par_iter()
+            .with_min_len(LINES_PER_TASK)
+            .map_init(
+                || Splitter::new(delimiter),
+                |splitter, pending| {
+                    let limit = options.max_line_bytes;
+                    let range = pending
+                        .bytes
+                        .clone()
+                        .ok_or((None, LineProblem::TooLong { limit }))?;
+                    let text = delimiter
+                        .text_of(bytes.get(range).unwrap_or_default())
+                        .ok_or((None, LineProblem::InvalidUtf8))?;
+                    let fields = splitter.split(text).map_err(|problem| (None, problem))?;
+                    convert_row(&fields, &layout, options, pending.row, pending.line)
+                },
+            )
+            .collect();
+        for (pending, outcome) in batch.iter().zip(outcomes) {
+            match outcome {
+                Ok(converted) => {
+                    medium_assumed |= converted.medium_assumed;
+                    lines.push(converted.line);
+                }
+                Err((column, problem)) => {
+                    let mut location = Location::line(source, pending.line);
+                    if let Some(column) = column {
+                        location = location.column(layout.name(column));
+                    }
+                    if !options.skip_bad {
+                        return Err(LineListError::BadLine { location, problem });
+                    }
+                    skipped_total += 1;
+                    if skipped.len() < SKIPPED_DETAIL_LIMIT {
+                        skipped.push(SkippedRow {
+                            location,
+                            reason: problem.to_string(),
+                        });
+                    }
+                }
+            }
+        }
+        if let Some(error) = read_error {
+            return Err(error);
         }
     }
 

@@ -794,3 +794,53 @@ proptest! {
         }
     }
 }
+
+#[test]
+fn large_lists_read_in_batches_as_line_by_line() {
+    // 40 000 rows (three conversion batches), bad rows in the first and the third:
+    // the rows, the skipped rows and the first error are where they are in the file,
+    // on one thread or four (the conversion runs in parallel).
+    let mut text = String::from("wavenumber_cm1,uncertainty_cm1,note\n");
+    for i in 0..40_000 {
+        match i {
+            7 | 35_001 => text.push_str("oops,0.1,bad\n"),
+            20_000 => text.push_str("# a comment between batches\n"),
+            _ => text.push_str(&format!("{}.5,0.01,n{i}\n", 10_000 + i)),
+        }
+    }
+    let skip = ReadOptions {
+        skip_bad: true,
+        ..ReadOptions::default()
+    };
+    let read_on = |threads: usize, options: &ReadOptions| {
+        rayon::ThreadPoolBuilder::new()
+            .num_threads(threads)
+            .build()
+            .unwrap()
+            .install(|| read_with(&text, options))
+    };
+    let one = read_on(1, &skip).unwrap();
+    let four = read_on(4, &skip).unwrap();
+    assert_eq!(one, four);
+    assert_eq!(one.lines.len(), 39_997);
+    let skipped: Vec<String> = one.skipped.iter().map(|s| s.location.to_string()).collect();
+    // Physical lines: the header is line 1, data row i is on line i + 2.
+    assert_eq!(
+        skipped,
+        vec![
+            "lines.csv:9: column 'wavenumber_cm1'",
+            "lines.csv:35003: column 'wavenumber_cm1'"
+        ]
+    );
+    assert!(one.lines.windows(2).all(|w| w[0].row < w[1].row));
+    let last = one.lines.last().unwrap();
+    assert_eq!((last.row, last.source_line), (39_999, 40_001));
+    let strict = ReadOptions::default();
+    for threads in [1, 4] {
+        let error = read_on(threads, &strict).unwrap_err().to_string();
+        assert!(
+            error.starts_with("lines.csv:9: column 'wavenumber_cm1'"),
+            "{error}"
+        );
+    }
+}
