@@ -266,8 +266,9 @@ fn assign_matches_observed_lines_against_the_model() {
     {
         assert_eq!(label(row, "lower"), label(expected, "lower"));
         assert_eq!(label(row, "upper"), label(expected, "upper"));
+        // The assign CSV gives gf to three significant digits.
         let gf = number(row, "predicted_strength");
-        assert!((gf / number(expected, "gf") - 1.0).abs() < 1e-9);
+        assert!((gf / number(expected, "gf") - 1.0).abs() < 5e-3);
     }
     assert_eq!(assigned.iter().filter(|r| r["rank"] == "1").count(), 3);
     // The intercombination line keeps its flag.

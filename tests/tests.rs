@@ -6,6 +6,7 @@ mod angular_tables;
 mod assign_cli;
 mod assign_reference;
 mod compiled_spectra;
+mod digits_roundtrip;
 mod fit_cli;
 mod fit_physics;
 mod fit_roundtrip;

@@ -67,7 +67,7 @@ use crate::levels::{PredictedLine, Predictions};
 use crate::linelist::ObservedLine;
 pub use record::{
     ASSIGN_COLUMNS, AssignmentFile, AssignmentReadError, AssignmentRecord, CandidateRecord,
-    read_assignments, records,
+    predicted_in_given_unit, read_assignments, records,
 };
 use search::{CandidateIndex, Cursor, Hit};
 
@@ -299,6 +299,11 @@ pub struct MatchProgress {
 /// Lines between two progress reports.
 const PROGRESS_EVERY: usize = 1 << 16;
 
+/// Lines matched by one task: several tasks per progress batch, so that both cores
+/// stay busy, each long enough for its searches to start from where the previous
+/// line's ended.
+const LINES_PER_TASK: usize = 1 << 13;
+
 /// Assign every observed line; see the module documentation. The result has one
 /// [`LineAssignment`] per observed line, in the order given.
 pub fn assign_lines(
@@ -310,31 +315,60 @@ pub fn assign_lines(
 }
 
 /// [`assign_lines`], calling `progress` every 65 536 lines and at the end.
+///
+/// The lines may come in any order (a line list keeps its input order). They are
+/// matched in order of wavenumber, through a sorted index, so that each search
+/// starts near where the previous one ended, in tasks spread over every core; the
+/// result is the same whatever the number of cores.
 pub fn assign_lines_with_progress(
     observed: &[ObservedLine],
     predictions: &Predictions,
     config: &MatchConfig,
     progress: &mut dyn FnMut(MatchProgress),
 ) -> Vec<LineAssignment> {
+    use rayon::prelude::*;
+
     let index = CandidateIndex::new(predictions);
-    let mut cursor = index.cursor();
-    let mut hits = Vec::new();
-    let mut result = Vec::with_capacity(observed.len());
-    for (i, line) in observed.iter().enumerate() {
-        index.search(
-            &mut cursor,
-            line.wavenumber_cm1,
-            line.uncertainty_cm1,
-            config.tolerance_sigma,
-            &mut hits,
-        );
-        result.push(LineAssignment {
-            observed: i,
-            candidates: rank(line.wavenumber_cm1, &hits, &index, &mut cursor, config),
-        });
-        if (i + 1) % PROGRESS_EVERY == 0 {
+    let order = wavenumber_order(observed);
+    let mut result: Vec<LineAssignment> = (0..observed.len())
+        .map(|observed| LineAssignment {
+            observed,
+            candidates: Vec::new(),
+        })
+        .collect();
+    let mut done = 0;
+    for batch in order.chunks(PROGRESS_EVERY) {
+        let matched: Vec<Vec<(usize, Vec<Candidate>)>> = batch
+            .par_chunks(LINES_PER_TASK)
+            .map(|task| {
+                let mut cursor = index.cursor();
+                let mut hits = Vec::new();
+                task.iter()
+                    .filter_map(|&i| {
+                        let line = observed.get(i)?;
+                        index.search(
+                            &mut cursor,
+                            line.wavenumber_cm1,
+                            line.uncertainty_cm1,
+                            config.tolerance_sigma,
+                            &mut hits,
+                        );
+                        let candidates =
+                            rank(line.wavenumber_cm1, &hits, &index, &mut cursor, config);
+                        Some((i, candidates))
+                    })
+                    .collect()
+            })
+            .collect();
+        for (i, candidates) in matched.into_iter().flatten() {
+            if let Some(slot) = result.get_mut(i) {
+                slot.candidates = candidates;
+            }
+        }
+        done += batch.len();
+        if done < observed.len() {
             progress(MatchProgress {
-                done: i + 1,
+                done,
                 total: observed.len(),
             });
         }
@@ -344,6 +378,45 @@ pub fn assign_lines_with_progress(
         total: observed.len(),
     });
     result
+}
+
+/// Indices of `lines` in order of increasing wavenumber (input order among equal
+/// ones; non-finite wavenumbers in the total order of `f64::total_cmp`).
+///
+/// A list already in order, or in reverse order (a list by increasing
+/// wavelength), takes one pass; else (wavenumber, index) keys are sorted, the
+/// index making every key distinct, so the order is the one a stable sort gives.
+fn wavenumber_order(lines: &[ObservedLine]) -> Vec<usize> {
+    use rayon::prelude::*;
+
+    let increasing = |pair: &[ObservedLine]| {
+        pair[0].wavenumber_cm1.total_cmp(&pair[1].wavenumber_cm1) != std::cmp::Ordering::Greater
+    };
+    if lines.windows(2).all(increasing) {
+        return (0..lines.len()).collect();
+    }
+    let strictly_decreasing = |pair: &[ObservedLine]| {
+        pair[0].wavenumber_cm1.total_cmp(&pair[1].wavenumber_cm1) == std::cmp::Ordering::Greater
+    };
+    if lines.windows(2).all(strictly_decreasing) {
+        return (0..lines.len()).rev().collect();
+    }
+    // The bits of a double, flipped so that unsigned order is f64::total_cmp's.
+    let key = |x: f64| {
+        let bits = x.to_bits();
+        if bits >> 63 == 1 {
+            !bits
+        } else {
+            bits | 1 << 63
+        }
+    };
+    let mut keys: Vec<(u64, usize)> = lines
+        .iter()
+        .enumerate()
+        .map(|(i, line)| (key(line.wavenumber_cm1), i))
+        .collect();
+    keys.par_sort_unstable();
+    keys.into_iter().map(|(_, i)| i).collect()
 }
 
 /// Candidates from the hits of one observed line, with chance probabilities, ranked.

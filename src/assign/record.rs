@@ -1,5 +1,6 @@
-//! The assign CSV: one row per candidate (one row for an unassigned line), and the
-//! reader that reads it back (for the level optimisation).
+//! The assign CSV: its columns, one row per candidate (one row for an unassigned
+//! line) as a record in memory, and the reader that reads it back (for the level
+//! optimisation).
 
 use std::io::BufRead;
 
@@ -38,8 +39,12 @@ use crate::units::{LengthUnit, Medium, Wavelength};
 /// | `flags` | `;`-separated: `intercombination`, `L-forbidden`, `jump-forbidden`, `two-electron-jump`, `blend`, `unassigned` |
 ///
 /// Terms are printed `2S+1 L` with `°` for odd parity (`3P°`), pair-coupling terms
-/// `2[3/2]°`. Numbers are printed with the fewest digits that read back to the same
-/// binary value.
+/// `2[3/2]°`. Numbers carry the digits they have (see [`crate::report::digits`]):
+/// wavenumbers, energies and deviations to 10⁻⁸ cm⁻¹, `predicted_in_given_unit` to
+/// 10⁻¹¹ nm in its unit, uncertainties, `deviation_sigma`, `chance_probability` and
+/// `predicted_strength` to three significant digits, `given_value` and
+/// `observed_intensity` as read. The writer is `crate::report::write_assign_csv`,
+/// whose table of columns says how each is written.
 pub const ASSIGN_COLUMNS: [&str; 28] = [
     "line",
     "given_value",
@@ -157,7 +162,10 @@ pub struct CandidateRecord {
     pub selection_rules: SelectionRules,
 }
 
-/// Flatten assignments into records, sorted by input row, then rank.
+/// Flatten assignments into records, sorted by input row, then rank: the rows of
+/// the assign CSV in memory, as [`read_assignments`] gives them back. The outputs
+/// of `termsight assign` do not go through these records (they are written
+/// straight from the assignments); they are for programs and tests.
 ///
 /// `assignments` must come from [`super::assign_lines`] called with `list.lines`
 /// and `predictions`; a candidate or line index out of range is left out.
@@ -207,7 +215,7 @@ pub fn records(
                     upper_energy_cm1: upper.energy_cm1,
                     predicted_wavenumber_cm1: line.wavenumber_cm1,
                     predicted_uncertainty_cm1: line.uncertainty_cm1.hypot(model_u),
-                    predicted_in_given_unit: in_given_unit(
+                    predicted_in_given_unit: predicted_in_given_unit(
                         line.wavenumber_cm1,
                         &observed.given,
                         list.air_formula,
@@ -227,8 +235,9 @@ pub fn records(
     out
 }
 
-/// A vacuum wavenumber in the unit and medium of `given`.
-fn in_given_unit(
+/// A vacuum wavenumber `sigma_cm1` in the unit and medium of `given` (converted to
+/// air with `formula`); `None` when it cannot be expressed there.
+pub fn predicted_in_given_unit(
     sigma_cm1: f64,
     given: &GivenPosition,
     formula: crate::units::AirFormula,
@@ -240,73 +249,6 @@ fn in_given_unit(
                 .ok()
                 .map(|w| w.value)
         }
-    }
-}
-
-/// Format a number so that it reads back to the same value.
-fn number(value: f64) -> String {
-    format!("{value}")
-}
-
-fn optional(value: Option<f64>) -> String {
-    value.map(number).unwrap_or_default()
-}
-
-impl AssignmentRecord {
-    /// The fields of this record in the order of [`ASSIGN_COLUMNS`], then the
-    /// pass-through fields.
-    pub fn csv_fields(&self) -> Vec<String> {
-        let (given_value, given_unit, given_medium) = match self.given {
-            GivenPosition::Wavelength {
-                value,
-                unit,
-                medium,
-            } => (value, unit.suffix(), medium.name()),
-            GivenPosition::Wavenumber { value } => (value, "cm1", ""),
-        };
-        let mut fields = vec![
-            self.line.to_string(),
-            number(given_value),
-            given_unit.to_string(),
-            given_medium.to_string(),
-            number(self.observed_wavenumber_cm1),
-            number(self.observed_uncertainty_cm1),
-            optional(self.observed_intensity),
-            self.rank.map(|r| r.to_string()).unwrap_or_default(),
-        ];
-        match &self.candidate {
-            Some(c) => fields.extend([
-                c.species.to_string(),
-                c.lower.configuration.to_string(),
-                c.lower.term.to_string(),
-                c.lower.j.to_string(),
-                number(c.lower_energy_cm1),
-                c.upper.configuration.to_string(),
-                c.upper.term.to_string(),
-                c.upper.j.to_string(),
-                number(c.upper_energy_cm1),
-                number(c.predicted_wavenumber_cm1),
-                number(c.predicted_uncertainty_cm1),
-                optional(c.predicted_in_given_unit),
-                optional(c.predicted_strength),
-                optional(c.ga_s1),
-                number(c.deviation_cm1),
-                number(c.combined_uncertainty_cm1),
-                number(c.deviation_sigma),
-                number(c.chance_probability),
-                c.selection_rules.name().to_string(),
-            ]),
-            None => fields.extend(std::iter::repeat_n(String::new(), 19)),
-        }
-        fields.push(
-            self.flags
-                .iter()
-                .map(|f| f.name())
-                .collect::<Vec<_>>()
-                .join(";"),
-        );
-        fields.extend(self.extra.iter().cloned());
-        fields
     }
 }
 

@@ -302,3 +302,36 @@ fn flag_names_round_trip() {
         assert_eq!(Flag::from_name(flag.name()), Some(flag));
     }
 }
+
+proptest! {
+    // The matching order is that of a stable sort by wavenumber, whatever the
+    // input order (reference: the standard library's stable sort).
+    #[test]
+    fn lines_are_matched_in_the_order_of_a_stable_sort(
+        // Few distinct values, so that ties are common.
+        values in prop::collection::vec(0u8..20, 0..200)
+    ) {
+        let lines: Vec<ObservedLine> = values
+            .iter()
+            .map(|&v| observed(1000.0 + f64::from(v), 0.1))
+            .collect();
+        let mut expected: Vec<usize> = (0..lines.len()).collect();
+        expected.sort_by(|&a, &b| lines[a].wavenumber_cm1.total_cmp(&lines[b].wavenumber_cm1));
+        prop_assert_eq!(wavenumber_order(&lines), expected);
+    }
+}
+
+#[test]
+fn a_list_by_increasing_wavelength_with_ties_is_matched_in_stable_order() {
+    // Decreasing wavenumber with a tie: reversing would swap the second and third.
+    let lines: Vec<ObservedLine> = [30.0, 20.0, 20.0, 10.0]
+        .iter()
+        .map(|&s| observed(s, 0.1))
+        .collect();
+    assert_eq!(wavenumber_order(&lines), vec![3, 1, 2, 0]);
+    let lines: Vec<ObservedLine> = [30.0, 20.0, 10.0]
+        .iter()
+        .map(|&s| observed(s, 0.1))
+        .collect();
+    assert_eq!(wavenumber_order(&lines), vec![2, 1, 0]);
+}

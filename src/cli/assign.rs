@@ -7,8 +7,8 @@ use clap::ValueEnum;
 
 use super::CliError;
 use super::input::{open_input, read_levels_file};
-use super::output::write_output;
-use crate::assign::{MatchConfig, MatchProgress, assign_lines_with_progress, records};
+use super::output::{write_output, write_output_with};
+use crate::assign::{MatchConfig, MatchProgress, assign_lines_with_progress};
 use crate::levels::{
     EMBEDDED_TABLES, EmbeddedTable, Predictions, compiled_predictions, embedded_stages,
     embedded_table, predict_from_table,
@@ -16,7 +16,8 @@ use crate::levels::{
 use crate::linelist::{GlobalUncertainty, LineList, ReadOptions, read_line_list};
 use crate::notation::Species;
 use crate::report::{
-    AssignReport, InputSummary, TableOptions, assign_csv, assign_json, assign_table,
+    AssignReport, InputSummary, TableOptions, write_assign_csv, write_assign_json,
+    write_assign_table,
 };
 use crate::transitions::model_predictions;
 use crate::units::{AirFormula, Medium};
@@ -225,29 +226,30 @@ pub fn run(args: AssignArgs) -> Result<(), CliError> {
             );
         }
     };
-    let result = assign_lines_with_progress(&list.lines, &predictions, &config, &mut progress);
-    let rows = records(&list, &predictions, &result);
+    let assignments = assign_lines_with_progress(&list.lines, &predictions, &config, &mut progress);
+    if total > PROGRESS_ABOVE {
+        let _ = writeln!(
+            io::stderr(),
+            "termsight: matched all {total} lines; writing the results"
+        );
+    }
     let input = InputSummary::from_line_list(&list);
     let report = AssignReport {
         input: &input,
         config: &config,
-        species: predictions.species(),
-        records: &rows,
-        extra_columns: &list.extra_columns,
+        list: &list,
+        predictions: &predictions,
+        assignments: &assignments,
     };
-    let bytes = match args.format {
-        Format::Table => assign_table(
-            &report,
-            &TableOptions {
-                all: args.all,
-                ..TableOptions::default()
-            },
-        )
-        .into_bytes(),
-        Format::Csv => assign_csv(&report),
-        Format::Json => assign_json(&report).into_bytes(),
+    let options = TableOptions {
+        all: args.all,
+        ..TableOptions::default()
     };
-    write_output(args.output.as_deref(), &bytes)
+    write_output_with(args.output.as_deref(), |out| match args.format {
+        Format::Table => write_assign_table(&report, &options, out),
+        Format::Csv => write_assign_csv(&report, out),
+        Format::Json => write_assign_json(&report, out),
+    })
 }
 
 fn match_config(args: &AssignArgs) -> Result<MatchConfig, CliError> {

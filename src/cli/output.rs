@@ -6,6 +6,9 @@ use std::path::{Path, PathBuf};
 
 use super::CliError;
 
+/// Bytes buffered before a write reaches the file.
+const BUFFER_BYTES: usize = 1 << 20;
+
 /// Write `bytes` to `path` through a temporary file in the same directory that is
 /// renamed into place only when complete: an interrupted run never leaves a
 /// partial output, and an existing file is replaced in one step, keeping its
@@ -13,6 +16,16 @@ use super::CliError;
 /// the link), and a path that is not a regular file (`/dev/null`, `/dev/stdout`, a
 /// named pipe) is written to in place rather than replaced.
 pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<(), CliError> {
+    write_atomically_with(path, |out| out.write_all(bytes))
+}
+
+/// [`write_atomically`] for an output written piece by piece: `write` gets a
+/// buffered writer on the temporary file (or on the device), and the file is
+/// renamed into place only when `write` has returned without error.
+pub fn write_atomically_with(
+    path: &Path,
+    write: impl FnOnce(&mut dyn Write) -> io::Result<()>,
+) -> Result<(), CliError> {
     let io_error = |source| CliError::Io {
         path: path.display().to_string(),
         source,
@@ -30,7 +43,7 @@ pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<(), CliError> {
                 .write(true)
                 .open(path)
                 .map_err(io_error)?;
-            return file.write_all(bytes).map_err(io_error);
+            return buffered(&mut file, write).map_err(io_error);
         }
     }
     let is_link = fs::symlink_metadata(path).is_ok_and(|m| m.file_type().is_symlink());
@@ -38,7 +51,10 @@ pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<(), CliError> {
         match fs::canonicalize(path) {
             Ok(target) => target,
             // A link to a file that does not exist yet: create it through the link.
-            Err(_) => return fs::write(path, bytes).map_err(io_error),
+            Err(_) => {
+                let mut file = fs::File::create(path).map_err(io_error)?;
+                return buffered(&mut file, write).map_err(io_error);
+            }
         }
     } else {
         path.to_path_buf()
@@ -55,7 +71,8 @@ pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<(), CliError> {
         builder.permissions(fs::Permissions::from_mode(0o666));
     }
     let mut temp = builder.tempfile_in(dir).map_err(io_error)?;
-    temp.write_all(bytes).map_err(io_error)?;
+    // On an error the temporary file is removed when `temp` is dropped.
+    buffered(temp.as_file_mut(), write).map_err(io_error)?;
     if let Some(meta) = &existing {
         temp.as_file()
             .set_permissions(meta.permissions())
@@ -66,18 +83,39 @@ pub fn write_atomically(path: &Path, bytes: &[u8]) -> Result<(), CliError> {
     Ok(())
 }
 
+/// Run `write` on a buffered writer on `file`, then flush it.
+fn buffered(
+    file: &mut fs::File,
+    write: impl FnOnce(&mut dyn Write) -> io::Result<()>,
+) -> io::Result<()> {
+    let mut out = io::BufWriter::with_capacity(BUFFER_BYTES, file);
+    write(&mut out)?;
+    out.flush()
+}
+
 /// Write `bytes` to the file at `path` as [`write_atomically`] does, or to standard
 /// output when there is no path.
 pub fn write_output(path: Option<&Path>, bytes: &[u8]) -> Result<(), CliError> {
+    write_output_with(path, |out| out.write_all(bytes))
+}
+
+/// [`write_output`] for an output written piece by piece (see
+/// [`write_atomically_with`]); standard output is buffered too.
+pub fn write_output_with(
+    path: Option<&Path>,
+    write: impl FnOnce(&mut dyn Write) -> io::Result<()>,
+) -> Result<(), CliError> {
     match path {
-        Some(path) => write_atomically(path, bytes),
-        None => io::stdout()
-            .lock()
-            .write_all(bytes)
-            .map_err(|source| CliError::Io {
-                path: "<stdout>".into(),
-                source,
-            }),
+        Some(path) => write_atomically_with(path, write),
+        None => {
+            let mut out = io::BufWriter::with_capacity(BUFFER_BYTES, io::stdout().lock());
+            write(&mut out)
+                .and_then(|()| out.flush())
+                .map_err(|source| CliError::Io {
+                    path: "<stdout>".into(),
+                    source,
+                })
+        }
     }
 }
 
@@ -142,6 +180,22 @@ mod tests {
         let err = write_atomically(dir.path(), b"x").unwrap_err();
         assert!(err.to_string().contains(&dir.path().display().to_string()));
         assert!(dir.path().is_dir());
+    }
+
+    #[test]
+    fn a_failed_write_leaves_neither_the_file_nor_a_temporary_one() {
+        // Common practice, no source: an output that fails half-way is not left
+        // behind, and the file it would have replaced is kept.
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("out.csv");
+        std::fs::write(&path, "old").unwrap();
+        let result = write_atomically_with(&path, |out| {
+            out.write_all(b"half")?;
+            Err(io::Error::other("interrupted"))
+        });
+        assert!(result.is_err());
+        assert_eq!(std::fs::read_to_string(&path).unwrap(), "old");
+        assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 1);
     }
 
     #[test]

@@ -1,5 +1,5 @@
 //! Measured line lists: reading CSV, TSV or whitespace-separated text with a header,
-//! validating every row, and holding the lines sorted by vacuum wavenumber.
+//! validating every row, and holding the lines in input order.
 //!
 //! [`read_line_list`] reads a list from any [`BufRead`](std::io::BufRead) and a source
 //! name (used in messages); [`ReadOptions`] carries what the command line adds (the
@@ -56,8 +56,8 @@
 //! - **Lines longer than** [`ReadOptions::max_line_bytes`] are rejected, so that a
 //!   file that is not a line list fails quickly and in bounded memory.
 //!
-//! The lines come out sorted by increasing vacuum wavenumber (input order among
-//! equals), each with its 1-based data-row index [`ObservedLine::row`] (counting every
+//! The lines come out in input order (the matcher sorts its own index by
+//! wavenumber), each with its 1-based data-row index [`ObservedLine::row`] (counting every
 //! data row, also rows that were skipped) and its physical line number
 //! [`ObservedLine::source_line`].
 //!
@@ -72,7 +72,7 @@
 //! let list = read_line_list(text.as_bytes(), "scan3.csv", &ReadOptions::default()).unwrap();
 //! assert_eq!(list.lines.len(), 2);
 //! assert!(list.medium_assumed); // no medium given: air above 200 nm
-//! assert_eq!(list.lines[0].row, 1); // 587.56 nm has the lower wavenumber
+//! assert_eq!(list.lines[0].row, 1);
 //! assert_eq!(list.lines[1].extra, vec!["blend?".to_string()]);
 //! ```
 
@@ -147,7 +147,7 @@ pub struct SkippedRow {
 pub struct LineList {
     /// Name of the source (a path or `<stdin>`).
     pub source: String,
-    /// The lines, sorted by increasing vacuum wavenumber.
+    /// The lines, in input order.
     pub lines: Vec<ObservedLine>,
     /// Names of columns passed through to the output unchanged.
     pub extra_columns: Vec<String>,

@@ -1,4 +1,6 @@
-//! The reader: find the header, read the rows, sort by wavenumber.
+//! The reader: find the header, read the rows (the bytes in one stream, their
+//! conversion in parallel batches; the result and the errors are those of reading
+//! line by line).
 
 use std::io::BufRead;
 
@@ -7,9 +9,27 @@ use super::fields::{Delimiter, Splitter};
 use super::header::Layout;
 use super::options::ReadOptions;
 use super::physical::{Next, PhysicalLines};
-use super::row::convert_row;
-use super::{LineList, ObservedLine, SkippedRow};
+use super::row::{ConvertedRow, RowError, convert_row};
+use super::{LineList, SkippedRow};
 use crate::location::Location;
+use rayon::prelude::*;
+
+/// Data lines read before they are converted, in parallel tasks of at least
+/// [`LINES_PER_TASK`] lines.
+const LINES_PER_BATCH: usize = 1 << 14;
+
+/// Lines converted by one task.
+const LINES_PER_TASK: usize = 1 << 10;
+
+/// A data line read and not yet converted.
+struct Pending {
+    /// 1-based data row.
+    row: usize,
+    /// Physical line number.
+    line: usize,
+    /// Where its bytes are in the batch; `None` for a line over the length limit.
+    bytes: Option<std::ops::Range<usize>>,
+}
 
 /// How many skipped rows [`LineList::skipped`] keeps in detail; the rest are only
 /// counted in [`LineList::skipped_total`], so that memory stays bounded.
@@ -18,7 +38,7 @@ pub const SKIPPED_DETAIL_LIMIT: usize = 500;
 /// Read a measured line list from `reader`; `source` names it in messages (a path
 /// or `<stdin>`). The format is described in the [module documentation](super).
 ///
-/// Returns the lines sorted by increasing vacuum wavenumber. Errors name the file,
+/// Returns the lines in input order. Errors name the file,
 /// the line and the column; with [`ReadOptions::skip_bad`] bad data rows are left
 /// out and listed instead.
 pub fn read_line_list(
@@ -33,7 +53,7 @@ pub fn read_line_list(
         problem,
     };
 
-    let (layout, mut splitter) = loop {
+    let (layout, splitter) = loop {
         let next = physical
             .next_line(&mut buf, false)
             .map_err(|error| io_error(source, physical.number() + 1, error))?;
@@ -62,56 +82,107 @@ pub fn read_line_list(
         break (Layout::from_header(&fields, source, line)?, splitter);
     };
 
+    let delimiter = splitter.delimiter();
+    drop(splitter);
     let mut lines = Vec::new();
     let mut skipped = Vec::new();
     let mut skipped_total = 0;
     let mut medium_assumed = false;
     let mut row = 0;
-    loop {
-        let next = physical
-            .next_line(&mut buf, options.skip_bad)
-            .map_err(|error| io_error(source, physical.number() + 1, error))?;
-        let line = physical.number();
-        let outcome = match next {
-            Next::End => break,
-            Next::Line if is_blank_or_comment(&buf) => continue,
-            Next::TooLong => {
-                row += 1;
-                let limit = options.max_line_bytes;
-                Err((None, LineProblem::TooLong { limit }))
-            }
-            Next::Line => {
-                row += 1;
-                match splitter.delimiter().text_of(&buf) {
-                    None => Err((None, LineProblem::InvalidUtf8)),
-                    Some(text) => match splitter.split(text) {
-                        Err(problem) => Err((None, problem)),
-                        Ok(fields) => convert_row(&fields, &layout, options, row, line),
-                    },
+    let mut batch: Vec<Pending> = Vec::with_capacity(LINES_PER_BATCH);
+    let mut bytes: Vec<u8> = Vec::new();
+    let mut finished = false;
+    while !finished {
+        // Read a batch of data lines (sequential: the input is one stream); an I/O
+        // error is reported after the rows before it, as a line-by-line reader would.
+        batch.clear();
+        bytes.clear();
+        let mut read_error = None;
+        while batch.len() < LINES_PER_BATCH {
+            let next = match physical.next_line(&mut buf, options.skip_bad) {
+                Ok(next) => next,
+                Err(error) => {
+                    read_error = Some(io_error(source, physical.number() + 1, error));
+                    break;
                 }
-            }
-        };
-        match outcome {
-            Ok(converted) => {
-                medium_assumed |= converted.medium_assumed;
-                lines.push(converted.line);
-            }
-            Err((column, problem)) => {
-                let mut location = Location::line(source, line);
-                if let Some(column) = column {
-                    location = location.column(layout.name(column));
+            };
+            let line = physical.number();
+            match next {
+                Next::End => {
+                    finished = true;
+                    break;
                 }
-                if !options.skip_bad {
-                    return Err(LineListError::BadLine { location, problem });
+                Next::Line if is_blank_or_comment(&buf) => {}
+                Next::TooLong => {
+                    row += 1;
+                    batch.push(Pending {
+                        row,
+                        line,
+                        bytes: None,
+                    });
+                    if !options.skip_bad {
+                        // Reading stopped inside the line: nothing after it is read.
+                        break;
+                    }
                 }
-                skipped_total += 1;
-                if skipped.len() < SKIPPED_DETAIL_LIMIT {
-                    skipped.push(SkippedRow {
-                        location,
-                        reason: problem.to_string(),
+                Next::Line => {
+                    row += 1;
+                    let start = bytes.len();
+                    bytes.extend_from_slice(&buf);
+                    batch.push(Pending {
+                        row,
+                        line,
+                        bytes: Some(start..bytes.len()),
                     });
                 }
             }
+        }
+        // Convert the batch on every core, in order.
+        let outcomes: Vec<Result<ConvertedRow, RowError>> = batch
+            .par_iter()
+            .with_min_len(LINES_PER_TASK)
+            .map_init(
+                || Splitter::new(delimiter),
+                |splitter, pending| {
+                    let limit = options.max_line_bytes;
+                    let range = pending
+                        .bytes
+                        .clone()
+                        .ok_or((None, LineProblem::TooLong { limit }))?;
+                    let text = delimiter
+                        .text_of(bytes.get(range).unwrap_or_default())
+                        .ok_or((None, LineProblem::InvalidUtf8))?;
+                    let fields = splitter.split(text).map_err(|problem| (None, problem))?;
+                    convert_row(&fields, &layout, options, pending.row, pending.line)
+                },
+            )
+            .collect();
+        for (pending, outcome) in batch.iter().zip(outcomes) {
+            match outcome {
+                Ok(converted) => {
+                    medium_assumed |= converted.medium_assumed;
+                    lines.push(converted.line);
+                }
+                Err((column, problem)) => {
+                    let mut location = Location::line(source, pending.line);
+                    if let Some(column) = column {
+                        location = location.column(layout.name(column));
+                    }
+                    if !options.skip_bad {
+                        return Err(LineListError::BadLine { location, problem });
+                    }
+                    skipped_total += 1;
+                    if skipped.len() < SKIPPED_DETAIL_LIMIT {
+                        skipped.push(SkippedRow {
+                            location,
+                            reason: problem.to_string(),
+                        });
+                    }
+                }
+            }
+        }
+        if let Some(error) = read_error {
+            return Err(error);
         }
     }
 
@@ -121,7 +192,6 @@ pub fn read_line_list(
             skipped: skipped_total,
         });
     }
-    sort_by_wavenumber(&mut lines);
     let extra_columns = layout
         .extras
         .iter()
@@ -138,41 +208,6 @@ pub fn read_line_list(
     })
 }
 
-/// Sort `lines` by increasing wavenumber, keeping the input order among equals (the
-/// order a stable sort gives).
-///
-/// Lists sorted by wavenumber, or by wavelength (strictly decreasing wavenumber), are
-/// common and take one pass. Otherwise sorting the ~90-byte records themselves costs
-/// more than the reading; instead (wavenumber, index) keys are sorted, the index
-/// breaking ties so that the order is the stable one, and each record is then moved
-/// once into place. The keys compare the wavenumbers' bit patterns, which order
-/// finite positive doubles as their values (IEEE 754), and every wavenumber here is
-/// finite and positive.
-fn sort_by_wavenumber(lines: &mut Vec<ObservedLine>) {
-    let increasing = |pair: &[ObservedLine]| pair[0].wavenumber_cm1 <= pair[1].wavenumber_cm1;
-    let strictly_decreasing =
-        |pair: &[ObservedLine]| pair[0].wavenumber_cm1 > pair[1].wavenumber_cm1;
-    if lines.windows(2).all(increasing) {
-        return;
-    }
-    if lines.windows(2).all(strictly_decreasing) {
-        lines.reverse();
-        return;
-    }
-    let mut keys: Vec<(u64, usize)> = lines
-        .iter()
-        .enumerate()
-        .map(|(index, line)| (line.wavenumber_cm1.to_bits(), index))
-        .collect();
-    keys.sort_unstable();
-    let mut slots: Vec<Option<ObservedLine>> =
-        std::mem::take(lines).into_iter().map(Some).collect();
-    *lines = keys
-        .into_iter()
-        .filter_map(|(_, index)| slots.get_mut(index).and_then(Option::take))
-        .collect();
-}
-
 fn io_error(source: &str, line: usize, error: std::io::Error) -> LineListError {
     LineListError::Io {
         location: Location::line(source, line),
@@ -186,57 +221,4 @@ fn is_blank_or_comment(line: &[u8]) -> bool {
     line.trim_ascii_start()
         .first()
         .is_none_or(|&byte| byte == b'#')
-}
-
-#[cfg(test)]
-mod tests {
-    use proptest::prelude::*;
-
-    use super::*;
-    use crate::linelist::GivenPosition;
-
-    fn line(row: usize, wavenumber_cm1: f64) -> ObservedLine {
-        ObservedLine {
-            row,
-            source_line: row,
-            given: GivenPosition::Wavenumber {
-                value: wavenumber_cm1,
-            },
-            wavenumber_cm1,
-            uncertainty_cm1: 1.0,
-            intensity: None,
-            extra: Vec::new(),
-        }
-    }
-
-    proptest! {
-        #[test]
-        fn the_fast_sort_matches_the_standard_stable_sort(
-            // Few distinct values, so that ties are common.
-            values in prop::collection::vec(0u8..20, 0..200)
-        ) {
-            let mut lines: Vec<ObservedLine> = values
-                .iter()
-                .enumerate()
-                .map(|(i, &v)| line(i + 1, f64::from(v)))
-                .collect();
-            let mut reference = lines.clone();
-            reference.sort_by(|a, b| a.wavenumber_cm1.total_cmp(&b.wavenumber_cm1));
-            sort_by_wavenumber(&mut lines);
-            prop_assert_eq!(lines, reference);
-        }
-    }
-
-    #[test]
-    fn a_list_by_increasing_wavelength_with_ties_stays_stable() {
-        // Decreasing wavenumber with a tie: reversing would swap rows 2 and 3.
-        let mut lines = vec![line(1, 30.0), line(2, 20.0), line(3, 20.0), line(4, 10.0)];
-        sort_by_wavenumber(&mut lines);
-        let rows: Vec<usize> = lines.iter().map(|l| l.row).collect();
-        assert_eq!(rows, vec![4, 2, 3, 1]);
-        let mut lines = vec![line(1, 30.0), line(2, 20.0), line(3, 10.0)];
-        sort_by_wavenumber(&mut lines);
-        let rows: Vec<usize> = lines.iter().map(|l| l.row).collect();
-        assert_eq!(rows, vec![3, 2, 1]);
-    }
 }

@@ -1,4 +1,4 @@
-//! Tests of the line-list reader as a whole: formats, media, uncertainties, sorting,
+//! Tests of the line-list reader as a whole: formats, media, uncertainties, order,
 //! every kind of bad input with its location, and skipping.
 
 use std::io::{self, BufReader, Read};
@@ -69,9 +69,9 @@ fn air_wavelengths_give_the_level_differences_of_the_reference_table() {
     // relative 0.0002/3296 = 6e-8, so σ must agree to 1e-7.
     let list = read(HE_I_CSV);
     assert_eq!(list.lines.len(), 3);
-    // Sorted by increasing wavenumber: the input order reversed.
+    // In input order.
     let rows: Vec<usize> = list.lines.iter().map(|line| line.row).collect();
-    assert_eq!(rows, vec![3, 2, 1]);
+    assert_eq!(rows, vec![1, 2, 3]);
     for line in &list.lines {
         let (lambda, lower, upper) = HE_I_RITZ[line.row - 1];
         assert_relative(line.wavenumber_cm1, upper - lower, 1e-7);
@@ -131,7 +131,7 @@ fn bom_crlf_comments_and_blank_lines_are_accepted() {
         .iter()
         .map(|line| (line.row, line.source_line))
         .collect();
-    // Sorted by wavenumber: 640 nm (row 1, line 6) before 585 nm (row 2, line 8).
+    // In input order: 640 nm (row 1, line 6), then 585 nm (row 2, line 8).
     assert_eq!(found, vec![(1, 6), (2, 8)]);
     assert!(list.extra_columns.is_empty());
     // The BOM is not part of the first column's name, and CRLF is not in the last.
@@ -217,10 +217,10 @@ fn the_convention_is_air_from_200_nm_and_vacuum_below() {
             GivenPosition::Wavenumber { .. } => panic!("a wavelength was given"),
         })
         .collect();
-    assert_eq!(media, vec![Medium::Air, Medium::Air, Medium::Vacuum]);
+    assert_eq!(media, vec![Medium::Vacuum, Medium::Air, Medium::Air]);
     assert!(list.medium_assumed);
     // Lyman α given in vacuum: σ = 1e8/1215.67 cm⁻¹ (definition of σ).
-    assert_eq!(list.lines[2].wavenumber_cm1, 1e8 / 1215.67);
+    assert_eq!(list.lines[0].wavenumber_cm1, 1e8 / 1215.67);
     // With the option nothing is assumed.
     let options = ReadOptions {
         medium: Some(Medium::Air),
@@ -300,13 +300,13 @@ fn the_uncertainty_unit_may_differ_from_the_position_unit() {
 }
 
 #[test]
-fn lines_of_equal_wavenumber_keep_their_input_order() {
+fn lines_keep_their_input_order() {
     let list = read(
         "wavenumber_cm1,uncertainty_cm1,id\n\
          300,0.1,c\n100,0.1,a\n200,0.1,b1\n200,0.1,b2\n200,0.1,b3\n",
     );
     let ids: Vec<&str> = list.lines.iter().map(|l| l.extra[0].as_str()).collect();
-    assert_eq!(ids, vec!["a", "b1", "b2", "b3", "c"]);
+    assert_eq!(ids, vec!["c", "a", "b1", "b2", "b3"]);
 }
 
 #[test]
@@ -785,12 +785,62 @@ proptest! {
         };
         let text = format!("{header}\n{body}");
         if let Ok(list) = read_line_list(text.as_bytes(), "fuzz", &options) {
-            // Whatever is read is sorted, finite and positive.
-            prop_assert!(list.lines.windows(2).all(|w| w[0].wavenumber_cm1 <= w[1].wavenumber_cm1));
+            // Whatever is read is in input order, finite and positive.
+            prop_assert!(list.lines.windows(2).all(|w| w[0].row < w[1].row));
             for line in &list.lines {
                 prop_assert!(line.wavenumber_cm1.is_finite() && line.wavenumber_cm1 > 0.0);
                 prop_assert!(line.uncertainty_cm1.is_finite() && line.uncertainty_cm1 > 0.0);
             }
         }
+    }
+}
+
+#[test]
+fn large_lists_read_in_batches_as_line_by_line() {
+    // 40 000 rows (three conversion batches), bad rows in the first and the third:
+    // the rows, the skipped rows and the first error are where they are in the file,
+    // on one thread or four (the conversion runs in parallel).
+    let mut text = String::from("wavenumber_cm1,uncertainty_cm1,note\n");
+    for i in 0..40_000 {
+        match i {
+            7 | 35_001 => text.push_str("oops,0.1,bad\n"),
+            20_000 => text.push_str("# a comment between batches\n"),
+            _ => text.push_str(&format!("{}.5,0.01,n{i}\n", 10_000 + i)),
+        }
+    }
+    let skip = ReadOptions {
+        skip_bad: true,
+        ..ReadOptions::default()
+    };
+    let read_on = |threads: usize, options: &ReadOptions| {
+        rayon::ThreadPoolBuilder::new()
+            .num_threads(threads)
+            .build()
+            .unwrap()
+            .install(|| read_with(&text, options))
+    };
+    let one = read_on(1, &skip).unwrap();
+    let four = read_on(4, &skip).unwrap();
+    assert_eq!(one, four);
+    assert_eq!(one.lines.len(), 39_997);
+    let skipped: Vec<String> = one.skipped.iter().map(|s| s.location.to_string()).collect();
+    // Physical lines: the header is line 1, data row i is on line i + 2.
+    assert_eq!(
+        skipped,
+        vec![
+            "lines.csv:9: column 'wavenumber_cm1'",
+            "lines.csv:35003: column 'wavenumber_cm1'"
+        ]
+    );
+    assert!(one.lines.windows(2).all(|w| w[0].row < w[1].row));
+    let last = one.lines.last().unwrap();
+    assert_eq!((last.row, last.source_line), (39_999, 40_001));
+    let strict = ReadOptions::default();
+    for threads in [1, 4] {
+        let error = read_on(threads, &strict).unwrap_err().to_string();
+        assert!(
+            error.starts_with("lines.csv:9: column 'wavenumber_cm1'"),
+            "{error}"
+        );
     }
 }

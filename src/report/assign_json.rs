@@ -1,19 +1,22 @@
-//! The JSON output of `termsight assign`.
+//! The JSON output of `termsight assign`, written line by line as it is formatted.
+
+use std::io::{self, Write};
 
 use serde::Serialize;
+use serde::ser::SerializeMap;
 
+use super::assign_rows::{Rendered, Row, given_parts};
+use super::digits::{Fixed, Uncertainty, WAVENUMBER_DECIMALS};
 use super::{AssignCounts, AssignReport, InputSummary};
-use crate::assign::AssignmentRecord;
-use crate::levels::LevelLabel;
-use crate::linelist::GivenPosition;
+use crate::assign::LineAssignment;
 
+/// Everything before the lines.
 #[derive(Serialize)]
-struct Document<'a> {
+struct Head<'a> {
     input: &'a InputSummary,
     matching: Matching,
     species: Vec<SpeciesJson<'a>>,
     counts: AssignCounts,
-    lines: Vec<LineJson>,
 }
 
 #[derive(Serialize)]
@@ -35,89 +38,149 @@ struct SpeciesJson<'a> {
 }
 
 #[derive(Serialize)]
-struct LineJson {
+struct LineJson<'a> {
     line: usize,
     given_value: f64,
     given_unit: &'static str,
     given_medium: Option<&'static str>,
-    observed_wavenumber_cm1: f64,
-    observed_uncertainty_cm1: f64,
+    observed_wavenumber_cm1: Fixed,
+    observed_uncertainty_cm1: Uncertainty,
     observed_intensity: Option<f64>,
     unassigned: bool,
-    extra: serde_json::Map<String, serde_json::Value>,
-    candidates: Vec<CandidateJson>,
+    extra: Extra<'a>,
+    candidates: Vec<CandidateJson<'a>>,
+}
+
+/// The pass-through fields as an object, column name to text.
+struct Extra<'a> {
+    names: &'a [String],
+    values: &'a [String],
+}
+
+impl Serialize for Extra<'_> {
+    fn serialize<S: serde::Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let pairs = self.names.iter().zip(self.values);
+        let mut map = serializer.serialize_map(Some(pairs.len()))?;
+        for (name, value) in pairs {
+            map.serialize_entry(name, value)?;
+        }
+        map.end()
+    }
 }
 
 #[derive(Serialize)]
-struct LevelJson {
-    configuration: String,
-    term: String,
+struct LevelJson<'a> {
+    configuration: &'a str,
+    term: &'a str,
     #[serde(rename = "J")]
-    j: String,
-    energy_cm1: f64,
+    j: &'a str,
+    energy_cm1: Fixed,
 }
 
 #[derive(Serialize)]
-struct CandidateJson {
+struct CandidateJson<'a> {
     rank: usize,
-    species: String,
-    lower: LevelJson,
-    upper: LevelJson,
-    predicted_wavenumber_cm1: f64,
-    predicted_uncertainty_cm1: f64,
-    predicted_in_given_unit: Option<f64>,
-    predicted_strength: Option<f64>,
+    species: &'a str,
+    lower: LevelJson<'a>,
+    upper: LevelJson<'a>,
+    predicted_wavenumber_cm1: Fixed,
+    predicted_uncertainty_cm1: Uncertainty,
+    predicted_in_given_unit: Option<Fixed>,
+    predicted_strength: Option<Uncertainty>,
     ga_s1: Option<f64>,
-    deviation_cm1: f64,
-    combined_uncertainty_cm1: f64,
-    deviation_sigma: f64,
-    chance_probability: f64,
+    deviation_cm1: Fixed,
+    combined_uncertainty_cm1: Uncertainty,
+    deviation_sigma: Uncertainty,
+    chance_probability: Uncertainty,
     selection_rules: &'static str,
     flags: Vec<&'static str>,
 }
 
-fn level(label: &LevelLabel, energy_cm1: f64) -> LevelJson {
-    LevelJson {
-        configuration: label.configuration.to_string(),
-        term: label.term.to_string(),
-        j: label.j.to_string(),
-        energy_cm1,
-    }
+fn wavenumber(value: f64) -> Fixed {
+    Fixed(value, WAVENUMBER_DECIMALS)
 }
 
-/// The JSON of an assign run: `input`, `matching` (settings), `species` (origin and
-/// rules per species), `counts`, and `lines`, one object per observed line with its
-/// ranked `candidates` (empty when unassigned). Labels, units and flags are written as
-/// in the CSV.
-pub fn assign_json(report: &AssignReport<'_>) -> String {
-    let mut lines: Vec<LineJson> = Vec::new();
-    for record in report.records {
-        if lines.last().is_none_or(|l| l.line != record.line) {
-            lines.push(line(record, report.extra_columns));
-        }
-        if let (Some(c), Some(rank), Some(current)) =
-            (&record.candidate, record.rank, lines.last_mut())
-        {
-            current.candidates.push(CandidateJson {
-                rank,
-                species: c.species.to_string(),
-                lower: level(&c.lower, c.lower_energy_cm1),
-                upper: level(&c.upper, c.upper_energy_cm1),
-                predicted_wavenumber_cm1: c.predicted_wavenumber_cm1,
-                predicted_uncertainty_cm1: c.predicted_uncertainty_cm1,
-                predicted_in_given_unit: c.predicted_in_given_unit,
-                predicted_strength: c.predicted_strength,
-                ga_s1: c.ga_s1,
-                deviation_cm1: c.deviation_cm1,
-                combined_uncertainty_cm1: c.combined_uncertainty_cm1,
-                deviation_sigma: c.deviation_sigma,
-                chance_probability: c.chance_probability,
-                selection_rules: c.selection_rules.name(),
-                flags: record.flags.iter().map(|f| f.name()).collect(),
-            });
-        }
-    }
-    let document = Document {
+fn candidate<'a>(row: &Row<'a>) -> Option<CandidateJson<'a>> {
+    let c = row.candidate?;
+    Some(CandidateJson {
+        rank: row.rank.unwrap_or(0),
+        species: &c.lower.species,
+        lower: LevelJson {
+            configuration: &c.lower.configuration,
+            term: &c.lower.term,
+            j: &c.lower.j,
+            energy_cm1: wavenumber(c.lower.energy_cm1),
+        },
+        upper: LevelJson {
+            configuration: &c.upper.configuration,
+            term: &c.upper.term,
+            j: &c.upper.j,
+            energy_cm1: wavenumber(c.upper.energy_cm1),
+        },
+        predicted_wavenumber_cm1: wavenumber(c.line.wavenumber_cm1),
+        predicted_uncertainty_cm1: Uncertainty(c.predicted_uncertainty_cm1()),
+        predicted_in_given_unit: row
+            .predicted_in_given_unit()
+            .map(|(value, decimals)| Fixed(value, decimals)),
+        predicted_strength: c.line.relative_strength.map(Uncertainty),
+        ga_s1: c.line.transition_probability.map(|t| t.ga_s1()),
+        deviation_cm1: wavenumber(c.candidate.deviation_cm1),
+        combined_uncertainty_cm1: Uncertainty(c.candidate.combined_uncertainty_cm1),
+        deviation_sigma: Uncertainty(c.candidate.deviation_sigma),
+        chance_probability: Uncertainty(c.candidate.chance_probability),
+        selection_rules: c.line.rules.name(),
+        flags: row.flags().map(|f| f.name()).collect(),
+    })
+}
+
+/// Append the JSON object of one observed line on a line of its own in the
+/// `lines` array, after a comma unless it is the first.
+fn push_line<'a>(
+    rendered: &'a Rendered<'a>,
+    assignment: &'a LineAssignment,
+    first: bool,
+    out: &mut Vec<u8>,
+) {
+    let report = rendered.report;
+    let Some(observed) = report.list.lines.get(assignment.observed) else {
+        return;
+    };
+    let (given_value, given_unit, given_medium) = given_parts(&observed.given);
+    let object = LineJson {
+        line: observed.row,
+        given_value,
+        given_unit,
+        given_medium,
+        observed_wavenumber_cm1: wavenumber(observed.wavenumber_cm1),
+        observed_uncertainty_cm1: Uncertainty(observed.uncertainty_cm1),
+        observed_intensity: observed.intensity,
+        unassigned: assignment.is_unassigned(),
+        extra: Extra {
+            names: &report.list.extra_columns,
+            values: &observed.extra,
+        },
+        candidates: rendered
+            .rows_of(assignment)
+            .filter_map(|row| candidate(&row))
+            .collect(),
+    };
+    out.extend_from_slice(if first { b"\n    " } else { b",\n    " });
+    // Serialising strings and numbers into memory cannot fail; a non-finite
+    // number becomes null.
+    let _ = serde_json::to_writer(&mut *out, &object);
+}
+
+/// Write the JSON of an assign run to `out`: `input`, `matching` (settings),
+/// `species` (origin and rules per species), `counts`, and `lines`, one object per
+/// observed line in input order with its ranked `candidates` (empty when
+/// unassigned), each on a line of its own (so that a million lines stay a file of
+/// manageable size and can be read line by line). Labels, units, flags and the
+/// digits of numbers are those of the CSV.
+pub fn write_assign_json<W: Write + ?Sized>(
+    report: &AssignReport<'_>,
+    out: &mut W,
+) -> io::Result<()> {
+    let head = Head {
         input: report.input,
         matching: Matching {
             tolerance_sigma: report.config.tolerance_sigma(),
@@ -125,7 +188,7 @@ pub fn assign_json(report: &AssignReport<'_>) -> String {
             rule_penalty_sigma: report.config.rule_penalty_sigma(),
         },
         species: report
-            .species
+            .species()
             .iter()
             .map(|s| SpeciesJson {
                 species: s.species.to_string(),
@@ -138,38 +201,29 @@ pub fn assign_json(report: &AssignReport<'_>) -> String {
             })
             .collect(),
         counts: report.counts(),
-        lines,
     };
-    // Serialising plain structs of strings and finite or infinite numbers cannot
-    // fail; non-finite numbers become null.
-    let mut text = serde_json::to_string_pretty(&document).unwrap_or_default();
-    text.push('\n');
-    text
+    let mut text = serde_json::to_vec_pretty(&head).map_err(io::Error::other)?;
+    // Open the head object again for the lines: drop its closing "\n}".
+    text.truncate(text.len().saturating_sub(2));
+    text.extend_from_slice(b",\n  \"lines\": [");
+    out.write_all(&text)?;
+    let first = report.assignments.first();
+    let rendered = Rendered::new(report);
+    rendered.write_lines(out, |rendered, assignment, buffer| {
+        let is_first = first.is_some_and(|f| std::ptr::eq(f, assignment));
+        push_line(rendered, assignment, is_first, buffer);
+    })?;
+    if report.assignments.is_empty() {
+        out.write_all(b"]\n}\n")
+    } else {
+        out.write_all(b"\n  ]\n}\n")
+    }
 }
 
-fn line(record: &AssignmentRecord, extra_columns: &[String]) -> LineJson {
-    let (given_value, given_unit, given_medium) = match record.given {
-        GivenPosition::Wavelength {
-            value,
-            unit,
-            medium,
-        } => (value, unit.suffix(), Some(medium.name())),
-        GivenPosition::Wavenumber { value } => (value, "cm1", None),
-    };
-    LineJson {
-        line: record.line,
-        given_value,
-        given_unit,
-        given_medium,
-        observed_wavenumber_cm1: record.observed_wavenumber_cm1,
-        observed_uncertainty_cm1: record.observed_uncertainty_cm1,
-        observed_intensity: record.observed_intensity,
-        unassigned: record.candidate.is_none(),
-        extra: extra_columns
-            .iter()
-            .zip(&record.extra)
-            .map(|(k, v)| (k.clone(), serde_json::Value::String(v.clone())))
-            .collect(),
-        candidates: Vec::new(),
-    }
+/// [`write_assign_json`] into memory.
+pub fn assign_json(report: &AssignReport<'_>) -> String {
+    let mut out = Vec::new();
+    // Writing to a Vec cannot fail.
+    let _ = write_assign_json(report, &mut out);
+    String::from_utf8(out).unwrap_or_default()
 }

@@ -4,10 +4,14 @@
 //! For `termsight assign`, an [`AssignReport`] gathers what every output says: the
 //! input ([`InputSummary`]: source, how positions were given, the medium and air
 //! formula), the matcher's settings, per species where the predictions come from and
-//! which selection rules were applied, and the rows ([`AssignmentRecord`]). Then
-//! [`assign_table`] gives the terminal table, [`assign_csv`] the CSV (the format of
+//! which selection rules were applied, and the rows, read straight from the line
+//! list, the assignments and the predictions. Then [`write_assign_table`] writes the
+//! terminal table, [`write_assign_csv`] the CSV (the format of
 //! [`crate::assign::ASSIGN_COLUMNS`], which [`crate::assign::read_assignments`] reads
-//! back) and [`assign_json`] the JSON.
+//! back) and [`write_assign_json`] the JSON, each into any [`std::io::Write`] as the
+//! rows are formatted (in parallel batches, the bytes the same on any number of
+//! cores); [`assign_table`], [`assign_csv`] and [`assign_json`] return them whole.
+//! Numbers carry the digits they have: see [`digits`].
 //!
 //! For `termsight lines`, a [`LinesReport`] holds the selected lines of a level
 //! model; [`lines_table`], [`lines_csv`] and [`lines_json`] write it.
@@ -16,23 +20,25 @@
 
 mod assign_csv;
 mod assign_json;
+mod assign_rows;
 mod assign_table;
 mod compiled;
 mod csv_document;
+pub mod digits;
 mod fit;
 mod model_lines;
 mod optimize;
 
 use serde::Serialize;
 
-use crate::assign::{AssignmentRecord, Flag, MatchConfig};
-use crate::levels::SpeciesSummary;
+use crate::assign::{LineAssignment, MatchConfig};
+use crate::levels::{Predictions, SpeciesSummary};
 use crate::linelist::{GivenPosition, LineList};
 use crate::units::{AirFormula, Medium};
 
-pub use assign_csv::assign_csv;
-pub use assign_json::assign_json;
-pub use assign_table::{TableOptions, assign_table};
+pub use assign_csv::{assign_csv, write_assign_csv};
+pub use assign_json::{assign_json, write_assign_json};
+pub use assign_table::{TableOptions, assign_table, write_assign_table};
 pub use compiled::{CompiledSpectrum, compiled_spectra_table};
 pub use fit::{FitReport, fit_json, fit_table};
 pub use model_lines::{
@@ -147,19 +153,22 @@ impl InputSummary {
     }
 }
 
-/// Everything the outputs of `termsight assign` show.
+/// Everything the outputs of `termsight assign` show. The writers read the rows
+/// straight from the line list, the assignments and the predictions.
 #[derive(Debug, Clone, Copy)]
 pub struct AssignReport<'a> {
-    /// The measured line list.
+    /// What the outputs say about the measured line list.
     pub input: &'a InputSummary,
     /// The matcher's settings.
     pub config: &'a MatchConfig,
-    /// Per species: origin of the predictions and the rules applied.
-    pub species: &'a [SpeciesSummary],
-    /// The rows: one per candidate, one per unassigned line; by line, then rank.
-    pub records: &'a [AssignmentRecord],
-    /// Names of the pass-through columns of the line list.
-    pub extra_columns: &'a [String],
+    /// The measured lines (in input order) and their pass-through columns.
+    pub list: &'a LineList,
+    /// The predictions matched against: levels, lines, and per species their origin
+    /// and the rules applied.
+    pub predictions: &'a Predictions,
+    /// The result of [`crate::assign::assign_lines`] for `list.lines` and
+    /// `predictions`: one per line, in the order of the lines.
+    pub assignments: &'a [LineAssignment],
 }
 
 /// Counts for the summary line.
@@ -176,23 +185,25 @@ pub struct AssignCounts {
 }
 
 impl AssignReport<'_> {
-    /// Count lines, assigned, blends and unassigned from the records.
+    /// Per species: origin of the predictions and the rules applied.
+    pub fn species(&self) -> &[SpeciesSummary] {
+        self.predictions.species()
+    }
+
+    /// Count lines, assigned, blends and unassigned.
     pub fn counts(&self) -> AssignCounts {
-        let mut counts = AssignCounts::default();
-        for record in self.records {
-            match record.rank {
-                None => {
-                    counts.lines += 1;
-                    counts.unassigned += 1;
+        let mut counts = AssignCounts {
+            lines: self.assignments.len(),
+            ..AssignCounts::default()
+        };
+        for assignment in self.assignments {
+            if assignment.is_unassigned() {
+                counts.unassigned += 1;
+            } else {
+                counts.assigned += 1;
+                if assignment.is_blend() {
+                    counts.blends += 1;
                 }
-                Some(1) => {
-                    counts.lines += 1;
-                    counts.assigned += 1;
-                    if record.flags.contains(&Flag::Blend) {
-                        counts.blends += 1;
-                    }
-                }
-                Some(_) => {}
             }
         }
         counts
@@ -203,7 +214,7 @@ impl AssignReport<'_> {
     /// the matcher's settings, and the counts.
     pub fn description(&self) -> Vec<String> {
         let mut lines = vec![format!("Input: {}.", self.input.sentence())];
-        for s in self.species {
+        for s in self.species() {
             let mut line = format!(
                 "Predictions, {}: {} ({} levels, {} lines",
                 s.species,

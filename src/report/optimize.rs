@@ -6,6 +6,9 @@ use comfy_table::{CellAlignment, LineStyle, Table, TableStyle};
 use serde::Serialize;
 
 use super::csv_document::csv_document;
+use super::digits::{
+    Fixed, Uncertainty, WAVENUMBER_DECIMALS, push_uncertainty, push_wavenumber, wavelength_decimals,
+};
 use crate::levels::LEVEL_COLUMNS;
 use crate::levels::optimize::{
     BlendPolicy, LevelResult, LineResult, OptimizationReport, OptimizeOptions, SpeciesResult,
@@ -46,6 +49,33 @@ fn decimals_for(u: f64) -> usize {
     } else {
         4
     }
+}
+
+/// A wavenumber or energy at the fixed resolution of 10⁻⁸ cm⁻¹ (see
+/// [`super::digits`]).
+fn position_text(value_cm1: f64) -> String {
+    let mut out = Vec::new();
+    push_wavenumber(&mut out, value_cm1);
+    String::from_utf8(out).unwrap_or_default()
+}
+
+/// An uncertainty or a deviation in standard uncertainties to three significant
+/// digits (see [`super::digits`]).
+fn three_digits(value: f64) -> String {
+    let mut out = Vec::new();
+    push_uncertainty(&mut out, value);
+    String::from_utf8(out).unwrap_or_default()
+}
+
+/// A wavelength in nm at the fixed resolution of 10⁻¹¹ nm.
+fn wavelength_text(value_nm: f64) -> String {
+    let mut out = Vec::new();
+    super::digits::push_fixed(&mut out, value_nm, wavelength_decimals(1.0));
+    String::from_utf8(out).unwrap_or_default()
+}
+
+fn cm1(value: f64) -> Fixed {
+    Fixed(value, WAVENUMBER_DECIMALS)
 }
 
 /// The Ritz wavelength of a line in the conventional medium (air from 200 nm), in nm,
@@ -296,8 +326,8 @@ pub const OPTIMIZED_LEVEL_EXTRA_COLUMNS: [&str; 5] = [
 
 /// The optimised levels as a level table (`species,configuration,term,J,energy_cm1,
 /// uncertainty_cm1,source` and [`OPTIMIZED_LEVEL_EXTRA_COLUMNS`]), readable by
-/// [`crate::levels::read_level_table`]. Numbers are printed with the fewest digits
-/// that read back to the same value.
+/// [`crate::levels::read_level_table`]. Energies are printed to 10⁻⁸ cm⁻¹ and
+/// uncertainties to three significant digits (see [`super::digits`]).
 pub fn optimized_levels_csv(report: &OptimizationReport, context: &OptimizeContext<'_>) -> Vec<u8> {
     let header: Vec<String> = LEVEL_COLUMNS
         .iter()
@@ -313,20 +343,18 @@ pub fn optimized_levels_csv(report: &OptimizationReport, context: &OptimizeConte
                 level.label.configuration.to_string(),
                 level.label.term.to_string(),
                 level.label.j.to_string(),
-                level.energy_cm1.to_string(),
-                level.uncertainty_cm1.to_string(),
+                position_text(level.energy_cm1),
+                three_digits(level.uncertainty_cm1),
                 format!(
                     "optimised from {} ({} lines), relative to {}",
                     context.source, level.line_count, system.reference
                 ),
                 level.line_count.to_string(),
                 (level.system + 1).to_string(),
+                level.prior_energy_cm1.map_or(String::new(), position_text),
                 level
                     .prior_energy_cm1
-                    .map_or(String::new(), |p| p.to_string()),
-                level
-                    .prior_energy_cm1
-                    .map_or(String::new(), |p| (level.energy_cm1 - p).to_string()),
+                    .map_or(String::new(), |p| position_text(level.energy_cm1 - p)),
                 level_flags(level).join(";"),
             ]);
         }
@@ -357,7 +385,9 @@ pub const OPTIMIZED_LINE_COLUMNS: [&str; 18] = [
 ];
 
 /// Every line with its Ritz wavenumber and wavelength (conventional medium) and their
-/// uncertainties from the covariance matrix, and its residual.
+/// uncertainties from the covariance matrix, and its residual; positions to
+/// 10⁻⁸ cm⁻¹ and 10⁻¹¹ nm, uncertainties and residuals in standard uncertainties to
+/// three significant digits (see [`super::digits`]).
 pub fn optimized_lines_csv(report: &OptimizationReport, context: &OptimizeContext<'_>) -> Vec<u8> {
     let header: Vec<String> = OPTIMIZED_LINE_COLUMNS
         .iter()
@@ -367,7 +397,7 @@ pub fn optimized_lines_csv(report: &OptimizationReport, context: &OptimizeContex
     for species in &report.species {
         for line in &species.lines {
             let (wavelength, u, medium) = match ritz_wavelength(line, context.air_formula) {
-                Some((w, u, m)) => (w.to_string(), u.to_string(), m.to_string()),
+                Some((w, u, m)) => (wavelength_text(w), three_digits(u), m.to_string()),
                 None => (String::new(), String::new(), String::new()),
             };
             rows.push(vec![
@@ -379,15 +409,15 @@ pub fn optimized_lines_csv(report: &OptimizationReport, context: &OptimizeContex
                 line.upper.configuration.to_string(),
                 line.upper.term.to_string(),
                 line.upper.j.to_string(),
-                line.observed_cm1.to_string(),
-                line.uncertainty_cm1.to_string(),
-                line.fit.ritz_cm1.to_string(),
-                line.fit.ritz_uncertainty_cm1.to_string(),
+                position_text(line.observed_cm1),
+                three_digits(line.uncertainty_cm1),
+                position_text(line.fit.ritz_cm1),
+                three_digits(line.fit.ritz_uncertainty_cm1),
                 wavelength,
                 u,
                 medium,
-                line.fit.residual_cm1.to_string(),
-                line.fit.residual_sigma.to_string(),
+                position_text(line.fit.residual_cm1),
+                three_digits(line.fit.residual_sigma),
                 line_flags(line).join(";"),
             ]);
         }
@@ -426,7 +456,7 @@ struct SpeciesJson<'a> {
 #[derive(Serialize)]
 struct SystemJson {
     reference: String,
-    reference_energy_cm1: f64,
+    reference_energy_cm1: Fixed,
     levels: usize,
     lines: usize,
 }
@@ -434,9 +464,9 @@ struct SystemJson {
 #[derive(Serialize)]
 struct LevelJson<'a> {
     label: String,
-    energy_cm1: f64,
-    uncertainty_cm1: f64,
-    tabulated_energy_cm1: Option<f64>,
+    energy_cm1: Fixed,
+    uncertainty_cm1: Uncertainty,
+    tabulated_energy_cm1: Option<Fixed>,
     line_count: usize,
     system: usize,
     flags: Vec<&'a str>,
@@ -447,15 +477,15 @@ struct LineJson<'a> {
     line: usize,
     lower: String,
     upper: String,
-    observed_wavenumber_cm1: f64,
-    uncertainty_cm1: f64,
-    ritz_wavenumber_cm1: f64,
-    ritz_uncertainty_cm1: f64,
-    ritz_wavelength_nm: Option<f64>,
-    ritz_wavelength_uncertainty_nm: Option<f64>,
+    observed_wavenumber_cm1: Fixed,
+    uncertainty_cm1: Uncertainty,
+    ritz_wavenumber_cm1: Fixed,
+    ritz_uncertainty_cm1: Uncertainty,
+    ritz_wavelength_nm: Option<Fixed>,
+    ritz_wavelength_uncertainty_nm: Option<Uncertainty>,
     ritz_medium: Option<Medium>,
-    residual_cm1: f64,
-    residual_sigma: f64,
+    residual_cm1: Fixed,
+    residual_sigma: Uncertainty,
     flags: Vec<&'a str>,
 }
 
@@ -485,7 +515,7 @@ pub fn optimize_json(report: &OptimizationReport, context: &OptimizeContext<'_>)
                     .iter()
                     .map(|s| SystemJson {
                         reference: s.reference.to_string(),
-                        reference_energy_cm1: s.reference_energy_cm1,
+                        reference_energy_cm1: cm1(s.reference_energy_cm1),
                         levels: s.level_count,
                         lines: s.line_count,
                     })
@@ -495,9 +525,9 @@ pub fn optimize_json(report: &OptimizationReport, context: &OptimizeContext<'_>)
                     .iter()
                     .map(|l| LevelJson {
                         label: l.label.to_string(),
-                        energy_cm1: l.energy_cm1,
-                        uncertainty_cm1: l.uncertainty_cm1,
-                        tabulated_energy_cm1: l.prior_energy_cm1,
+                        energy_cm1: cm1(l.energy_cm1),
+                        uncertainty_cm1: Uncertainty(l.uncertainty_cm1),
+                        tabulated_energy_cm1: l.prior_energy_cm1.map(cm1),
                         line_count: l.line_count,
                         system: l.system + 1,
                         flags: level_flags(l),
@@ -512,15 +542,16 @@ pub fn optimize_json(report: &OptimizationReport, context: &OptimizeContext<'_>)
                             line: l.line,
                             lower: l.lower.to_string(),
                             upper: l.upper.to_string(),
-                            observed_wavenumber_cm1: l.observed_cm1,
-                            uncertainty_cm1: l.uncertainty_cm1,
-                            ritz_wavenumber_cm1: l.fit.ritz_cm1,
-                            ritz_uncertainty_cm1: l.fit.ritz_uncertainty_cm1,
-                            ritz_wavelength_nm: wavelength.map(|w| w.0),
-                            ritz_wavelength_uncertainty_nm: wavelength.map(|w| w.1),
+                            observed_wavenumber_cm1: cm1(l.observed_cm1),
+                            uncertainty_cm1: Uncertainty(l.uncertainty_cm1),
+                            ritz_wavenumber_cm1: cm1(l.fit.ritz_cm1),
+                            ritz_uncertainty_cm1: Uncertainty(l.fit.ritz_uncertainty_cm1),
+                            ritz_wavelength_nm: wavelength
+                                .map(|w| Fixed(w.0, wavelength_decimals(1.0))),
+                            ritz_wavelength_uncertainty_nm: wavelength.map(|w| Uncertainty(w.1)),
                             ritz_medium: wavelength.map(|w| w.2),
-                            residual_cm1: l.fit.residual_cm1,
-                            residual_sigma: l.fit.residual_sigma,
+                            residual_cm1: cm1(l.fit.residual_cm1),
+                            residual_sigma: Uncertainty(l.fit.residual_sigma),
                             flags: line_flags(l),
                         }
                     })

@@ -19,7 +19,7 @@ fn helium_and_neon() -> Predictions {
 /// nothing here.
 fn list() -> LineList {
     let formula = AirFormula::default();
-    let mut lines: Vec<ObservedLine> = [(587.5621, "a,b"), (640.2248, "x"), (600.0, "")]
+    let lines: Vec<ObservedLine> = [(587.5621, "a,b"), (640.2248, "x"), (600.0, "")]
         .iter()
         .enumerate()
         .map(|(i, &(nm, note))| {
@@ -43,7 +43,6 @@ fn list() -> LineList {
             }
         })
         .collect();
-    lines.sort_by(|a, b| a.wavenumber_cm1.total_cmp(&b.wavenumber_cm1));
     LineList {
         source: "demo.csv".into(),
         lines,
@@ -58,22 +57,22 @@ fn list() -> LineList {
 struct Run {
     input: InputSummary,
     config: MatchConfig,
+    list: LineList,
     predictions: Predictions,
-    records: Vec<crate::assign::AssignmentRecord>,
-    extra: Vec<String>,
+    assignments: Vec<crate::assign::LineAssignment>,
 }
 
 fn run() -> Run {
     let list = list();
     let predictions = helium_and_neon();
     let config = MatchConfig::default();
-    let result = assign_lines(&list.lines, &predictions, &config);
+    let assignments = assign_lines(&list.lines, &predictions, &config);
     Run {
         input: InputSummary::from_line_list(&list),
         config,
-        records: records(&list, &predictions, &result),
+        list,
         predictions,
-        extra: list.extra_columns.clone(),
+        assignments,
     }
 }
 
@@ -82,9 +81,85 @@ impl Run {
         AssignReport {
             input: &self.input,
             config: &self.config,
-            species: self.predictions.species(),
-            records: &self.records,
-            extra_columns: &self.extra,
+            list: &self.list,
+            predictions: &self.predictions,
+            assignments: &self.assignments,
+        }
+    }
+
+    fn records(&self) -> Vec<crate::assign::AssignmentRecord> {
+        records(&self.list, &self.predictions, &self.assignments)
+    }
+}
+
+/// Records read back from a CSV agree with those in memory to the digits written:
+/// positions to half of 10⁻⁸ cm⁻¹ (or of 10⁻¹¹ nm in the given unit; to 15
+/// significant digits where that is coarser), the rest to
+/// half a unit in the third significant digit.
+fn assert_records_read_back(
+    back: &[crate::assign::AssignmentRecord],
+    expected: &[crate::assign::AssignmentRecord],
+) {
+    let position = |a: f64, b: f64, resolution: f64| {
+        // At most 15 significant digits are written.
+        let resolution = resolution.max(10f64.powf(b.abs().log10().floor() - 14.0));
+        assert!(
+            (a - b).abs() <= 0.5 * resolution + 4.0 * f64::EPSILON * b.abs(),
+            "{a} read back for {b}"
+        );
+    };
+    let three_digits = |a: f64, b: f64| {
+        assert!((a - b).abs() <= 5e-3 * b.abs(), "{a} read back for {b}");
+    };
+    assert_eq!(back.len(), expected.len());
+    for (a, b) in back.iter().zip(expected) {
+        assert_eq!(
+            (
+                a.line,
+                a.given,
+                a.observed_intensity,
+                a.rank,
+                &a.flags,
+                &a.extra
+            ),
+            (
+                b.line,
+                b.given,
+                b.observed_intensity,
+                b.rank,
+                &b.flags,
+                &b.extra
+            )
+        );
+        position(a.observed_wavenumber_cm1, b.observed_wavenumber_cm1, 1e-8);
+        three_digits(a.observed_uncertainty_cm1, b.observed_uncertainty_cm1);
+        assert_eq!(a.candidate.is_some(), b.candidate.is_some());
+        let (Some(x), Some(y)) = (&a.candidate, &b.candidate) else {
+            continue;
+        };
+        assert_eq!(
+            (x.species, &x.lower, &x.upper, x.selection_rules),
+            (y.species, &y.lower, &y.upper, y.selection_rules)
+        );
+        position(x.lower_energy_cm1, y.lower_energy_cm1, 1e-8);
+        position(x.upper_energy_cm1, y.upper_energy_cm1, 1e-8);
+        position(x.predicted_wavenumber_cm1, y.predicted_wavenumber_cm1, 1e-8);
+        position(x.deviation_cm1, y.deviation_cm1, 1e-8);
+        let nm = match a.given {
+            GivenPosition::Wavelength { unit, .. } => 1e-11 / unit.nanometres(),
+            GivenPosition::Wavenumber { .. } => 1e-8,
+        };
+        match (x.predicted_in_given_unit, y.predicted_in_given_unit) {
+            (Some(p), Some(q)) => position(p, q, nm),
+            (p, q) => assert_eq!(p, q),
+        }
+        three_digits(x.predicted_uncertainty_cm1, y.predicted_uncertainty_cm1);
+        three_digits(x.combined_uncertainty_cm1, y.combined_uncertainty_cm1);
+        three_digits(x.deviation_sigma, y.deviation_sigma);
+        three_digits(x.chance_probability, y.chance_probability);
+        match (x.predicted_strength, y.predicted_strength) {
+            (Some(p), Some(q)) => three_digits(p, q),
+            (p, q) => assert_eq!(p, q),
         }
     }
 }
@@ -96,7 +171,7 @@ fn csv_round_trips() {
     let text = String::from_utf8(bytes.clone()).unwrap();
     assert!(text.starts_with("# Input: 3 lines from demo.csv: air wavelengths (nm)"));
     let back = read_assignments(bytes.as_slice(), "out.csv").unwrap();
-    assert_eq!(back.records, run.records);
+    assert_records_read_back(&back.records, &run.records());
     assert_eq!(back.extra_columns, vec!["note".to_string()]);
     // The pass-through field with a comma survives the quoting.
     assert_eq!(back.records[0].extra, vec!["a,b".to_string()]);
@@ -176,4 +251,171 @@ fn significant_digits() {
     assert_eq!(significant(123.456, 2), "123");
     assert_eq!(significant(-0.5, 2), "-0.50");
     assert_eq!(significant(2.5e-7, 2), "2.5e-7");
+}
+
+#[test]
+fn the_table_writer_lays_out_as_the_table_crate_does() {
+    // The fixed-width writer replaces comfy-table for large tables; on a table
+    // that fits, both must give the same text.
+    let run = run();
+    for all in [false, true] {
+        let options = TableOptions {
+            all,
+            ..TableOptions::default()
+        };
+        let (ours, crate_text) = assign_table::by_both_writers(&run.report(), &options);
+        assert_eq!(ours, crate_text);
+    }
+}
+
+#[test]
+fn json_numbers_are_those_of_the_csv() {
+    let run = run();
+    let csv_text = String::from_utf8(assign_csv(&run.report())).unwrap();
+    let json: serde_json::Value = serde_json::from_str(&assign_json(&run.report())).unwrap();
+    let mut reader = csv::ReaderBuilder::new()
+        .comment(Some(b'#'))
+        .from_reader(csv_text.as_bytes());
+    let header = reader.headers().unwrap().clone();
+    let row = reader.records().next().unwrap().unwrap();
+    let field = |name: &str| -> f64 {
+        let i = header.iter().position(|h| h == name).unwrap();
+        row[i].parse().unwrap()
+    };
+    let line = &json["lines"][0];
+    let candidate = &line["candidates"][0];
+    assert_eq!(
+        line["observed_wavenumber_cm1"],
+        field("observed_wavenumber_cm1")
+    );
+    assert_eq!(
+        line["observed_uncertainty_cm1"],
+        field("observed_uncertainty_cm1")
+    );
+    assert_eq!(candidate["lower"]["energy_cm1"], field("lower_energy_cm1"));
+    assert_eq!(
+        candidate["predicted_wavenumber_cm1"],
+        field("predicted_wavenumber_cm1")
+    );
+    assert_eq!(
+        candidate["predicted_in_given_unit"],
+        field("predicted_in_given_unit")
+    );
+    assert_eq!(candidate["deviation_cm1"], field("deviation_cm1"));
+    assert_eq!(candidate["deviation_sigma"], field("deviation_sigma"));
+    assert_eq!(candidate["chance_probability"], field("chance_probability"));
+}
+
+/// A line list of `n` lines in input order (not sorted), near the He I and Ne I
+/// predictions or anywhere, some in air nm and some in vacuum cm⁻¹, with a
+/// pass-through column; from a seeded generator.
+fn large_list(n: usize, predictions: &Predictions) -> LineList {
+    use rand::{Rng, SeedableRng, rngs::StdRng};
+    let mut rng = StdRng::seed_from_u64(15);
+    let formula = AirFormula::default();
+    let predicted = predictions.lines();
+    let lines = (0..n)
+        .map(|i| {
+            let u = 0.01 * 10f64.powf(rng.random::<f64>());
+            let sigma = if i % 2 == 0 {
+                let pick = rng.random_range(0..predicted.len());
+                predicted[pick].wavenumber_cm1 + u * (2.0 * rng.random::<f64>() - 1.0)
+            } else {
+                15000.0 + 10000.0 * rng.random::<f64>()
+            };
+            let given = if i % 3 == 0 || sigma > 45000.0 {
+                GivenPosition::Wavenumber { value: sigma }
+            } else {
+                let w = Wavelength::from_wavenumber_cm1(
+                    sigma,
+                    LengthUnit::Nanometre,
+                    Medium::Air,
+                    formula,
+                )
+                .unwrap();
+                GivenPosition::Wavelength {
+                    value: w.value,
+                    unit: w.unit,
+                    medium: w.medium,
+                }
+            };
+            ObservedLine {
+                row: i + 1,
+                source_line: i + 2,
+                given,
+                wavenumber_cm1: sigma,
+                uncertainty_cm1: u,
+                intensity: (i % 5 != 0).then(|| f64::from(rng.random_range(1..1000u32))),
+                extra: vec![format!("note {i}, \"quoted\"")],
+            }
+        })
+        .collect();
+    LineList {
+        source: "large.csv".into(),
+        lines,
+        extra_columns: vec!["note".into()],
+        air_formula: formula,
+        skipped: vec![],
+        skipped_total: 0,
+        medium_assumed: false,
+    }
+}
+
+#[test]
+fn outputs_are_the_same_on_one_core_and_on_four() {
+    // Matching and formatting run in parallel tasks; the result and the bytes of
+    // every format must not depend on how many threads did the work. 40 000 lines
+    // make two output batches and several tasks in each.
+    let predictions = helium_and_neon();
+    let list = large_list(40_000, &predictions);
+    let config = MatchConfig::default();
+    let input = InputSummary::from_line_list(&list);
+    let outputs = |threads: usize| {
+        let pool = rayon::ThreadPoolBuilder::new()
+            .num_threads(threads)
+            .build()
+            .unwrap();
+        pool.install(|| {
+            let assignments = assign_lines(&list.lines, &predictions, &config);
+            let report = AssignReport {
+                input: &input,
+                config: &config,
+                list: &list,
+                predictions: &predictions,
+                assignments: &assignments,
+            };
+            let table = assign_table(
+                &report,
+                &TableOptions {
+                    all: true,
+                    ..TableOptions::default()
+                },
+            );
+            (
+                assignments.clone(),
+                assign_csv(&report),
+                assign_json(&report),
+                table,
+            )
+        })
+    };
+    let one = outputs(1);
+    let four = outputs(4);
+    assert_eq!(one.0, four.0);
+    assert!(one.1 == four.1, "the CSV differs");
+    assert!(one.2 == four.2, "the JSON differs");
+    assert!(one.3 == four.3, "the table differs");
+    // The matching in input order agrees with matching the lines one at a time.
+    for (i, line) in list.lines.iter().enumerate().step_by(997) {
+        let alone = assign_lines(std::slice::from_ref(line), &predictions, &config);
+        assert_eq!(alone[0].candidates, one.0[i].candidates);
+    }
+    // Every row is there, in input order, and the JSON parses.
+    let csv_text = String::from_utf8(one.1).unwrap();
+    let back = read_assignments(csv_text.as_bytes(), "large.csv").unwrap();
+    assert!(back.records.windows(2).all(|w| w[0].line <= w[1].line));
+    assert_eq!(back.records.last().unwrap().line, 40_000);
+    assert_records_read_back(&back.records, &records(&list, &predictions, &four.0));
+    let json: serde_json::Value = serde_json::from_str(&one.2).unwrap();
+    assert_eq!(json["lines"].as_array().unwrap().len(), 40_000);
 }
