@@ -86,7 +86,7 @@ fn partition(levels: &[Level], t: f64, limit: f64) -> f64 {
 
 /// Debye–Hückel lowering in cm⁻¹: 2.0866e-8 eV (n_e/T)^{1/2} (Griem 1964, eq. 5-19).
 fn lowering(ne: f64, t: f64) -> f64 {
-    2.0866e-8 * (ne / t).sqrt() * 8065.543_937
+    2.0866e-8 * (ne / t).sqrt() * 8_065.543_937
 }
 
 struct Plasma {
@@ -123,8 +123,8 @@ fn coverage(plasma: &Plasma, per_stage: usize, repetitions: usize, seed: u64) ->
     let scatter: Normal<f64> = Normal::new(0.0, 0.05).unwrap();
     let (t, ne) = (plasma.t, plasma.ne);
     let dchi = lowering(ne, t);
-    let chi = plasma.chi_ev * 8065.543_937;
-    let chi_ion = plasma.chi_ion_ev * 8065.543_937;
+    let chi = plasma.chi_ev * 8_065.543_937;
+    let chi_ion = plasma.chi_ion_ev * 8_065.543_937;
     let u0 = partition(&plasma.neutral.1, t, chi - dchi);
     let u1 = partition(&plasma.ion.1, t, chi_ion - 2.0 * dchi);
     // Saha: N⁺/N⁰ = (2U⁺/U⁰)(2π m_e kT/h²)^{3/2} e^{−(χ−Δχ)/kT} / n_e with
@@ -196,7 +196,7 @@ fn iron_ion_lines(levels: &[Level], seed: u64) -> Vec<(usize, usize, f64)> {
         }
         for (i, lo) in levels.iter().enumerate() {
             let sigma = up.energy - lo.energy;
-            if lo.odd || !(sigma > 0.0) || !(250.0..900.0).contains(&(1e7 / sigma)) {
+            if lo.odd || sigma <= 0.0 || !(250.0..900.0).contains(&(1e7 / sigma)) {
                 continue;
             }
             if (up.g - lo.g).abs() <= 2.0 {

@@ -227,7 +227,7 @@ fn weighted_mean(values: impl Iterator<Item = (f64, f64)>) -> Option<Measured> {
     if values.is_empty() {
         return None;
     }
-    if values.iter().any(|(_, s)| !(*s > 0.0)) {
+    if values.iter().any(|(_, s)| s.is_nan() || *s <= 0.0) {
         let n = values.len() as f64;
         let mean = values.iter().map(|(v, _)| v).sum::<f64>() / n;
         return Some(Measured {

@@ -206,7 +206,7 @@ fn scale(stated: bool) -> Scale {
 }
 
 fn temperature(slope: f64, slope_sigma: f64) -> Result<Measured, PlotError> {
-    if !(slope < 0.0) {
+    if slope.is_nan() || slope >= 0.0 {
         return Err(PlotError::NoTemperature { slope });
     }
     // y = a − E c₂/T: T = −c₂/b, σ_T = c₂ σ_b / b².

@@ -109,7 +109,7 @@ pub fn voigt_fwhm(lorentz: f64, gauss: f64) -> f64 {
 /// (Olivero & Longbothum 1977 solved for w_L: the smaller root of
 /// 0.069197 w_L² − 1.0692 w_V w_L + w_V² − w_G² = 0). `None` when w_V ≤ w_G.
 pub fn lorentz_fwhm(voigt: f64, gauss: f64) -> Option<f64> {
-    if !(voigt > gauss) {
+    if voigt.is_nan() || gauss.is_nan() || voigt <= gauss {
         return None;
     }
     let a = 0.5346 * 0.5346 - 0.2166;

@@ -179,7 +179,7 @@ pub fn fit_parallel_lines(
         .fold((f64::INFINITY, f64::NEG_INFINITY), |(lo, hi), x| {
             (lo.min(x), hi.max(x))
         });
-    if !(sxx > 0.0) || x_spread.1 - x_spread.0 <= 1e-12 * x_spread.1.abs().max(1.0) {
+    if sxx.is_nan() || sxx <= 0.0 || x_spread.1 - x_spread.0 <= 1e-12 * x_spread.1.abs().max(1.0) {
         return Err(LineFitError::NoSpread);
     }
     let slope = sxy / sxx;
@@ -317,16 +317,20 @@ mod tests {
                     if g == 1 { 1.0 } else { 0.0 },
                     p.x,
                 ];
-                for i in 0..3 {
-                    for j in 0..3 {
-                        normal[i][j] += row[i] * row[j];
+                for (i, normal_row) in normal.iter_mut().enumerate() {
+                    for (j, cell) in normal_row.iter_mut().enumerate() {
+                        *cell += row[i] * row[j];
                     }
                 }
             }
         }
         for i in 0..3 {
             for j in 0..3 {
-                let product: f64 = (0..3).map(|k| fit.variance(i, k) * normal[k][j]).sum();
+                let product: f64 = normal
+                    .iter()
+                    .enumerate()
+                    .map(|(k, row)| fit.variance(i, k) * row[j])
+                    .sum();
                 let identity = if i == j { 1.0 } else { 0.0 };
                 assert!((product - identity).abs() < 1e-12, "{i} {j} {product}");
             }
