@@ -28,6 +28,7 @@ pub mod digits;
 mod fit;
 mod model_lines;
 mod optimize;
+mod plasma;
 
 use serde::Serialize;
 
@@ -48,6 +49,9 @@ pub use model_lines::{
 pub use optimize::{
     OPTIMIZED_LEVEL_EXTRA_COLUMNS, OPTIMIZED_LINE_COLUMNS, OptimizeContext, optimize_description,
     optimize_json, optimize_table, optimized_levels_csv, optimized_lines_csv,
+};
+pub use plasma::{
+    PLASMA_COLUMNS, PLASMA_POINT_COLUMNS, plasma_csv, plasma_json, plasma_points_csv, plasma_table,
 };
 
 /// What the outputs say about the measured line list.
