@@ -173,7 +173,6 @@ pub fn plasma_table(d: &Diagnosis, source: &str, used: usize, skipped: usize) ->
         "Assumes LTE and optically thin lines; intensities in energy units on one relative scale."
     );
     let mut table = comfy_table::Table::new();
-    table.load_preset(comfy_table::presets::UTF8_FULL_CONDENSED);
     table.set_header([
         "element",
         "fit",
