@@ -168,6 +168,20 @@ impl MatchConfig {
     pub fn density_window_factor(&self) -> f64 {
         self.density_window_factor
     }
+
+    /// What the observed lines can reach: every predicted line the matcher would
+    /// look at for them lies within σ ± F·k·√(u² + U²) of one of them (a candidate
+    /// within k·u_c, the density count within F·k·u_max, F ≥ 1), U bounding the
+    /// predictions' uncertainty. Predictions outside it can be left out without
+    /// changing any result ([`crate::levels::ListReach`]).
+    pub fn reach_of(&self, observed: &[ObservedLine]) -> crate::levels::ListReach {
+        crate::levels::ListReach::new(
+            observed
+                .iter()
+                .map(|l| (l.wavenumber_cm1, l.uncertainty_cm1)),
+            self.density_window_factor * self.tolerance_sigma,
+        )
+    }
 }
 
 /// A flag on a candidate or on an observed line.

@@ -10,8 +10,8 @@ use super::input::{open_input, read_levels_file};
 use super::output::{write_output, write_output_with};
 use crate::assign::{MatchConfig, MatchProgress, assign_lines_with_progress};
 use crate::levels::{
-    EMBEDDED_TABLES, EmbeddedTable, Predictions, compiled_predictions, embedded_stages,
-    embedded_table, predict_from_table,
+    EMBEDDED_TABLES, EmbeddedTable, ListReach, Predictions, compiled_predictions,
+    compiled_predictions_near, embedded_stages, embedded_table, predict_from_table,
 };
 use crate::linelist::{GlobalUncertainty, LineList, ReadOptions, read_line_list};
 use crate::notation::Species;
@@ -206,14 +206,16 @@ pub fn run(args: AssignArgs) -> Result<(), CliError> {
         return list_species(&args);
     }
     let config = match_config(&args)?;
+    // The list first: the compiled spectra are predicted only where its lines reach.
+    let list = read_lines(&args)?;
+    report_skipped(&list);
     let predictions = predictions(
         &args.levels,
         &args.species,
         &args.model,
         args.model_uncertainty,
+        Some(&config.reach_of(&list.lines)),
     )?;
-    let list = read_lines(&args)?;
-    report_skipped(&list);
 
     let total = list.lines.len();
     let mut progress = |p: MatchProgress| {
@@ -268,12 +270,14 @@ fn match_config(args: &AssignArgs) -> Result<MatchConfig, CliError> {
 /// The predictions: from the compiled tables named with --species (all of them
 /// when neither --species, --levels nor --model is given), from every level table
 /// given with --levels (a table of a compiled species replaces the compiled one, and
-/// the outputs say so), and from every model.
+/// the outputs say so), and from every model. With `reach`, the compiled spectra
+/// keep only the lines its observed lines can reach (the same results, sooner).
 fn predictions(
     level_files: &[PathBuf],
     species_names: &[String],
     models: &[PathBuf],
     model_uncertainty: Option<f64>,
+    reach: Option<&ListReach>,
 ) -> Result<Predictions, CliError> {
     let mut wanted: Vec<Species> = Vec::new();
     for name in species_names {
@@ -316,8 +320,7 @@ fn predictions(
         }
         chosen
     };
-    let mut sets =
-        vec![compiled_predictions(&compiled).map_err(|e| CliError::Message(e.to_string()))?];
+    let mut sets = Vec::new();
     for table in &tables {
         let mut set = predict_from_table(table)
             .map_err(|e| CliError::Message(format!("{}: {e}", table.source)))?;
@@ -349,6 +352,24 @@ fn predictions(
     for path in models {
         sets.push(model_predictions_from(path, model_uncertainty)?);
     }
+    // The largest uncertainty of the other predictions widens the reach of the list
+    // (a broad candidate widens the density window of its line).
+    let other_uncertainty = sets
+        .iter()
+        .flat_map(|set| {
+            set.lines().iter().map(|line| {
+                line.uncertainty_cm1
+                    .hypot(set.model_uncertainty_cm1(line.species))
+            })
+        })
+        .fold(0.0, f64::max);
+    let compiled = match reach {
+        Some(reach) => compiled_predictions_near(&compiled, reach, other_uncertainty),
+        None => compiled_predictions(&compiled),
+    }
+    .map_err(|e| CliError::Message(e.to_string()))?;
+    // The compiled spectra first, as the outputs list them.
+    sets.insert(0, compiled);
     Predictions::combine(sets).map_err(|e| {
         CliError::Message(format!(
             "{e}; each species may come from one level table or model only"
@@ -490,12 +511,12 @@ mod tests {
 
     #[test]
     fn unknown_species_names_the_compiled_ones() {
-        let e = predictions(&[], &["Xe III".to_string()], &[], None).unwrap_err();
+        let e = predictions(&[], &["Xe III".to_string()], &[], None, None).unwrap_err();
         assert!(e.to_string().contains("no compiled table of Xe III"), "{e}");
         assert!(e.to_string().contains("H I, He I, Li I"), "{e}");
-        let e = predictions(&[], &["Xe".to_string()], &[], None).unwrap_err();
+        let e = predictions(&[], &["Xe".to_string()], &[], None, None).unwrap_err();
         assert!(e.to_string().contains("no compiled spectrum of Xe"), "{e}");
-        let e = predictions(&[], &["Xx I".to_string()], &[], None).unwrap_err();
+        let e = predictions(&[], &["Xx I".to_string()], &[], None, None).unwrap_err();
         assert!(
             e.to_string().starts_with("--species: cannot read species"),
             "{e}"
@@ -504,9 +525,9 @@ mod tests {
 
     #[test]
     fn default_is_every_compiled_table() {
-        let p = predictions(&[], &[], &[], None).unwrap();
+        let p = predictions(&[], &[], &[], None, None).unwrap();
         assert_eq!(p.species().len(), EMBEDDED_TABLES.len());
-        let p = predictions(&[], &["He I".into(), "Ne I".into()], &[], None).unwrap();
+        let p = predictions(&[], &["He I".into(), "Ne I".into()], &[], None, None).unwrap();
         let names: Vec<String> = p.species().iter().map(|s| s.species.to_string()).collect();
         assert_eq!(names, vec!["He I", "Ne I"]);
     }
@@ -517,6 +538,7 @@ mod tests {
             &[],
             &["Ar".into(), "He I".into(), "Ar II".into()],
             &[],
+            None,
             None,
         )
         .unwrap();

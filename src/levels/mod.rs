@@ -37,19 +37,22 @@ mod embedded;
 mod label;
 pub mod optimize;
 mod predicted;
+mod reach;
 mod ritz;
 mod table;
 
 pub use e1::{SelectionRules, TransitionFlags};
 pub use embedded::{
     COMPILED_RANGE_NM, CompiledError, EMBEDDED_TABLES, EmbeddedTable, RatesError,
-    compiled_predictions, compiled_range, embedded_stages, embedded_table,
+    compiled_predictions, compiled_predictions_near, compiled_range, embedded_stages,
+    embedded_table,
 };
 pub use label::{LabelError, LevelLabel};
 pub use predicted::{
     AccuracyCode, Listing, PredictedLine, PredictionError, Predictions, SpeciesOrigin,
-    SpeciesSummary, TransitionProbability,
+    SpeciesSummary, TransitionProbability, UnkeptLines,
 };
+pub use reach::{ListReach, Reach};
 pub use ritz::{WavenumberRange, predict_from_table, predict_lines, ritz_wavenumber};
 pub use table::{
     EnergyStatus, LEVEL_COLUMNS, Level, LevelTable, LevelTableError, MAX_LEVEL_TABLE_BYTES,
