@@ -62,8 +62,11 @@ unsafe impl GlobalAlloc for Counting {
 #[global_allocator]
 static ALLOCATOR: Counting = Counting;
 
-/// The benchmark models: name, configurations, interacting pairs.
-const MODELS: &[(&str, &[&str], &[(usize, usize)])] = &[
+/// A benchmark model: name, configurations, interacting pairs.
+type Model = (&'static str, &'static [&'static str], &'static [(usize, usize)]);
+
+/// The benchmark models.
+const MODELS: &[Model] = &[
     ("3d5", &["3d5"], &[]),
     (
         "3d4.4s+3d3.4s2+3d4.4p",

@@ -259,6 +259,7 @@ pub(crate) fn build_block(
     configurations: &[Configuration],
     members: &[usize],
     interactions: &HashSet<(usize, usize)>,
+    progress: &mut dyn FnMut(usize, usize),
 ) -> Result<BlockMatrices, StructureError> {
     // Active orbitals: every orbital of the block's configurations that is not
     // closed in all of them (those form the common core).
@@ -305,7 +306,19 @@ pub(crate) fn build_block(
     // ls_matrices[(L,2S)] = (terms, parameter → matrix over those terms).
     let mut ls_matrices: BTreeMap<(u32, u32), LsMatrices> = BTreeMap::new();
     let mut entries = Vec::new();
+    let mut two_js: BTreeSet<u32> = BTreeSet::new();
+    for term in &basis {
+        let mut j = (2 * term.l).abs_diff(term.two_s);
+        while j <= 2 * term.l + term.two_s {
+            two_js.insert(j);
+            j += 2;
+        }
+    }
+    let steps = groups.len() + two_js.len();
+    let mut step = 0;
     for (&(l, two_s), terms) in &groups {
+        step += 1;
+        progress(step, steps);
         let mut index: HashMap<Determinant, usize> = HashMap::new();
         let mut dets: Vec<(Determinant, usize)> = Vec::new();
         let vectors: Vec<_> = terms
@@ -451,14 +464,6 @@ pub(crate) fn build_block(
     }
 
     // J blocks.
-    let mut two_js: BTreeSet<u32> = BTreeSet::new();
-    for term in &basis {
-        let mut j = (2 * term.l).abs_diff(term.two_s);
-        while j <= 2 * term.l + term.two_s {
-            two_js.insert(j);
-            j += 2;
-        }
-    }
     let mut position: HashMap<usize, (u32, u32, usize)> = HashMap::new();
     for (&key, (terms, _)) in &ls_matrices {
         for (x, &t) in terms.iter().enumerate() {
@@ -470,6 +475,8 @@ pub(crate) fn build_block(
     // 6j symbols repeat across pairs of states: compute each once.
     let mut six_js: HashMap<[u32; 5], f64> = HashMap::new();
     for two_j in two_js {
+        step += 1;
+        progress(step, steps);
         let states: Vec<usize> = (0..basis.len())
             .filter(|&t| crate::angular::triangle(2 * basis[t].l, basis[t].two_s, two_j))
             .collect();
