@@ -122,10 +122,10 @@ impl LevelStructure {
                 }
                 // dE/dP_p for every root at once: diag(Vᵀ C_p V).
                 let mut derivatives = vec![vec![0.0; self.parameters.len()]; order.len()];
-                for (p, c) in &j_block.coefficients {
-                    let cv = c * &vectors;
-                    for (root, d) in derivatives.iter_mut().enumerate() {
-                        d[*p] = vectors.column(root).dot(&cv.column(root));
+                for (root, d) in derivatives.iter_mut().enumerate() {
+                    let v: Vec<f64> = vectors.column(root).iter().copied().collect();
+                    for (p, c) in &j_block.coefficients {
+                        d[*p] = c.quadratic_form(&v);
                     }
                 }
                 for (root, (&e, d)) in order.iter().zip(derivatives).enumerate() {

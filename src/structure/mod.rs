@@ -48,7 +48,7 @@ mod size;
 use std::collections::HashSet;
 
 pub use basis::{BasisTerm, TermLabel};
-pub use hamiltonian::{JBlock, ParityBlock};
+pub use hamiltonian::{CoefficientMatrix, JBlock, ParityBlock};
 pub use levels::{Component, Level, LevelsProgress, lande_g_ls};
 pub use orbital::{Determinant, MAX_SPIN_ORBITALS, Orbital, SpinOrbital, SpinOrbitalLayout};
 pub use parameter::{DipoleIntegral, ParameterId, Radial, Scope, scope_name};
