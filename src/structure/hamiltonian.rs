@@ -62,6 +62,27 @@ impl CoefficientMatrix {
         }
     }
 
+    /// From elements (row, column, value) in any order; of an element given twice
+    /// the last is kept, and zeros are left out.
+    pub(crate) fn from_elements(size: usize, mut list: Vec<(u32, u32, f64)>) -> CoefficientMatrix {
+        // A stable sort keeps repeated elements in the order given.
+        list.sort_by_key(|&(r, c, _)| (r, c));
+        let mut entries: Vec<(u32, u32, f64)> = Vec::with_capacity(list.len());
+        for e in list {
+            match entries.last_mut() {
+                Some(last) if (last.0, last.1) == (e.0, e.1) => *last = e,
+                _ => entries.push(e),
+            }
+        }
+        entries.retain(|e| e.2 != 0.0);
+        CoefficientMatrix { size, entries }
+    }
+
+    /// The largest |element|.
+    pub fn largest(&self) -> f64 {
+        self.entries.iter().map(|e| e.2.abs()).fold(0.0, f64::max)
+    }
+
     /// Number of rows (= columns).
     pub fn size(&self) -> usize {
         self.size
@@ -415,9 +436,12 @@ pub(crate) fn build_block(
             }
         }
         let mut v = DMatrix::zeros(dets.len(), terms.len());
+        // The non-zero coefficients of each determinant: (term column, value).
+        let mut in_terms: Vec<Vec<(usize, f64)>> = vec![Vec::new(); dets.len()];
         for (col, vector) in vectors.iter().enumerate() {
             for (d, c) in vector.iter() {
                 v[(index[d], col)] = *c;
+                in_terms[index[d]].push((col, *c));
             }
         }
         let mut images: HashMap<ParameterId, DMatrix<f64>> = HashMap::new();
@@ -440,10 +464,14 @@ pub(crate) fn build_block(
                     let w = images
                         .entry(id)
                         .or_insert_with(|| DMatrix::zeros(dets.len(), terms.len()));
-                    for col in 0..terms.len() {
-                        w[(i, col)] += c * v[(j, col)];
-                        if i != j {
-                            w[(j, col)] += c * v[(i, col)];
+                    // Only the terms that contain the determinant: the others
+                    // have an exact zero there.
+                    for &(col, x) in &in_terms[j] {
+                        w[(i, col)] += c * x;
+                    }
+                    if i != j {
+                        for &(col, x) in &in_terms[i] {
+                            w[(j, col)] += c * x;
                         }
                     }
                 }
@@ -571,16 +599,12 @@ pub(crate) fn build_block(
     }
 
     // J blocks.
-    let mut position: HashMap<usize, (u32, u32, usize)> = HashMap::new();
-    for (&key, (terms, _)) in &ls_matrices {
-        for (x, &t) in terms.iter().enumerate() {
-            position.insert(t, (key.0, key.1, x));
-        }
-    }
     let mut j_blocks = Vec::new();
     let mut j_coefficients = Vec::new();
     // 6j symbols repeat across pairs of states: compute each once.
     let mut six_js: HashMap<[u32; 5], f64> = HashMap::new();
+    // Position of each basis state in the current J block.
+    let mut local: Vec<Option<u32>> = vec![None; basis.len()];
     for two_j in two_js {
         step += 1;
         progress(step, steps);
@@ -588,38 +612,49 @@ pub(crate) fn build_block(
             .filter(|&t| crate::angular::triangle(2 * basis[t].l, basis[t].two_s, two_j))
             .collect();
         let n = states.len();
-        let mut local: HashMap<usize, usize> = HashMap::new();
+        local.iter_mut().for_each(|x| *x = None);
         for (x, &t) in states.iter().enumerate() {
-            local.insert(t, x);
+            local[t] = Some(x as u32);
         }
-        let mut matrices: BTreeMap<ParameterId, DMatrix<f64>> = BTreeMap::new();
+        // Elements (row, column, value) of each parameter, gathered unsorted; an
+        // element written twice keeps its last value.
+        let mut elements: BTreeMap<ParameterId, Vec<(u32, u32, f64)>> = BTreeMap::new();
         // E_av: the identity on each configuration's states.
         for (x, &t) in states.iter().enumerate() {
             let id = ParameterId {
                 scope: Scope::Configuration(basis[t].configuration),
                 radial: Radial::Average,
             };
-            matrices.entry(id).or_insert_with(|| DMatrix::zeros(n, n))[(x, x)] = 1.0;
+            elements
+                .entry(id)
+                .or_default()
+                .push((x as u32, x as u32, 1.0));
         }
-        // Coulomb, CI: copy the (L, S) matrices.
-        for (x, &t) in states.iter().enumerate() {
-            for (y, &u) in states.iter().enumerate() {
-                let (lt, st, xt) = position[&t];
-                let (lu, su, xu) = position[&u];
-                if (lt, st) != (lu, su) {
-                    continue;
-                }
-                for (id, m) in &ls_matrices[&(lt, st)].1 {
-                    let value = m[(xt, xu)];
-                    if value.abs() > ZERO {
-                        matrices.entry(*id).or_insert_with(|| DMatrix::zeros(n, n))[(x, y)] = value;
+        // Coulomb, CI: copy the (L, S) matrices, group by group.
+        for (terms, matrices) in ls_matrices.values() {
+            let here: Vec<(usize, u32)> = terms
+                .iter()
+                .enumerate()
+                .filter_map(|(xt, &t)| local[t].map(|x| (xt, x)))
+                .collect();
+            if here.is_empty() {
+                continue;
+            }
+            for (id, m) in matrices {
+                let list = elements.entry(*id).or_default();
+                for &(xt, x) in &here {
+                    for &(xu, y) in &here {
+                        let value = m[(xt, xu)];
+                        if value.abs() > ZERO {
+                            list.push((x, y, value));
+                        }
                     }
                 }
             }
         }
         // Spin–orbit.
         for &(t, u, id, reduced) in &spin_orbit {
-            let (Some(&x), Some(&y)) = (local.get(&t), local.get(&u)) else {
+            let (Some(x), Some(y)) = (local[t], local[u]) else {
                 continue;
             };
             let (a, b) = (&basis[t], &basis[u]);
@@ -631,23 +666,24 @@ pub(crate) fn build_block(
             let sign = phase(((2 * b.l + a.two_s + two_j) / 2) as i64);
             let value = sign * sixj * reduced;
             if value.abs() > ZERO {
-                let m = matrices.entry(id).or_insert_with(|| DMatrix::zeros(n, n));
-                m[(x, y)] = value;
-                m[(y, x)] = value;
+                let list = elements.entry(id).or_default();
+                list.push((x, y, value));
+                list.push((y, x, value));
             }
         }
-        matrices.retain(|_, m| m.amax() > ZERO);
+        let matrices: BTreeMap<ParameterId, CoefficientMatrix> = elements
+            .into_iter()
+            .filter_map(|(id, list)| {
+                let m = CoefficientMatrix::from_elements(n, list);
+                (m.largest() > ZERO).then_some((id, m))
+            })
+            .collect();
         j_blocks.push(JBlock {
             two_j,
             states,
             coefficients: Vec::new(),
         });
-        j_coefficients.push(
-            matrices
-                .into_iter()
-                .map(|(id, m)| (id, CoefficientMatrix::from_dense(&m)))
-                .collect(),
-        );
+        j_coefficients.push(matrices);
     }
     Ok(BlockMatrices {
         block: ParityBlock {
