@@ -63,7 +63,11 @@ unsafe impl GlobalAlloc for Counting {
 static ALLOCATOR: Counting = Counting;
 
 /// A benchmark model: name, configurations, interacting pairs.
-type Model = (&'static str, &'static [&'static str], &'static [(usize, usize)]);
+type Model = (
+    &'static str,
+    &'static [&'static str],
+    &'static [(usize, usize)],
+);
 
 /// The benchmark models.
 const MODELS: &[Model] = &[
