@@ -16,7 +16,7 @@ use crate::notation::{Configuration, Parity};
 pub const MAX_SUBSHELL_DETERMINANTS: u64 = 10_000;
 
 /// Most LS states one (parity, J) block may have: a block of n states is a dense
-/// n × n matrix diagonalised in O(n³) at every evaluation, about 3 s at n = 2000
+/// n × n matrix diagonalised in O(n³) at every evaluation, several seconds at n = 2000
 /// on one core of a small machine.
 pub const MAX_J_BLOCK_STATES: usize = 2_000;
 
