@@ -143,3 +143,24 @@ fn a_model_that_is_not_utf8_names_the_line() {
     );
     assert!(out.stdout.is_empty());
 }
+
+#[test]
+fn a_model_far_too_large_is_refused_at_once_with_its_size() {
+    // 6h¹¹ has C(22, 11) = 705 432 Slater determinants (common practice, no
+    // source); the README documents the limit of 10 000 per open subshell.
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("huge.toml");
+    std::fs::write(
+        &path,
+        "species = \"Ar I\"\n\n[[configuration]]\nlabel = \"6h11\"\nEav = 0.0\n",
+    )
+    .unwrap();
+    let out = termsight(&["levels", path.to_str().unwrap()]);
+    assert!(!out.status.success());
+    let text = String::from_utf8_lossy(&out.stderr);
+    assert!(text.contains("huge.toml:4"), "{text}");
+    assert!(text.contains("705432"), "{text}");
+    assert!(text.contains("10000"), "{text}");
+    assert!(text.contains("leave the configuration out"), "{text}");
+    assert!(!text.contains("panicked"), "{text}");
+}

@@ -8,11 +8,12 @@ use std::time::{Duration, Instant};
 use super::CliError;
 use super::input::{open_file, read_levels_file};
 use super::output::{write_atomically, write_output};
+use super::progress::ModelProgress;
 use crate::fit::{Convergence, FitOptions, FitProgress, Weighting, fit_levels, simple_picture};
 use crate::levels::{EMBEDDED_TABLES, LevelTable, embedded_table};
 use crate::notation::Species;
 use crate::report::{FitReport, fit_json, fit_table};
-use crate::structure::model::{LoadedModel, read_model, write_model};
+use crate::structure::model::{LoadedModel, read_model_with_progress, write_model};
 
 /// Long help of `termsight fit`.
 pub const LONG_ABOUT: &str = "\
@@ -118,8 +119,10 @@ const PROGRESS_AFTER: Duration = Duration::from_secs(1);
 /// Run `termsight fit`.
 pub fn run(args: FitArgs) -> Result<(), CliError> {
     let (reader, model_path) = open_file(&args.model)?;
-    let LoadedModel { model, structure } =
-        read_model(reader, &model_path).map_err(|e| CliError::Message(e.to_string()))?;
+    let mut progress = ModelProgress::new("fit", args.quiet);
+    let loaded = read_model_with_progress(reader, &model_path, |p| progress.build(p));
+    progress.finish();
+    let LoadedModel { model, structure } = loaded.map_err(|e| CliError::Message(e.to_string()))?;
     let table = level_table(&args, model.species)?;
 
     let mut options = FitOptions::default();

@@ -9,7 +9,8 @@ use serde::Serialize;
 use super::CliError;
 use super::input::open_file;
 use super::output::write_output;
-use crate::structure::model::{LoadedModel, read_model};
+use super::progress::ModelProgress;
+use crate::structure::model::{LoadedModel, read_model_with_progress};
 use crate::structure::{Level, LevelStructure};
 
 /// Output formats of `termsight levels`.
@@ -42,12 +43,14 @@ pub struct LevelsArgs {
 /// Run `termsight levels`.
 pub fn run(args: LevelsArgs) -> Result<(), CliError> {
     let (reader, path) = open_file(&args.model)?;
-    let LoadedModel { model, structure } =
-        read_model(reader, &path).map_err(|e| CliError::Message(e.to_string()))?;
+    let mut progress = ModelProgress::new("levels", false);
+    let loaded = read_model_with_progress(reader, &path, |p| progress.build(p));
+    progress.finish();
+    let LoadedModel { model, structure } = loaded.map_err(|e| CliError::Message(e.to_string()))?;
     let values = model.values_for(&structure);
-    let levels = structure
-        .levels(&values)
-        .map_err(|e| CliError::Message(format!("{path}: {e}")))?;
+    let levels = structure.levels_with_progress(&values, |p| progress.levels(p));
+    progress.finish();
+    let levels = levels.map_err(|e| CliError::Message(format!("{path}: {e}")))?;
     let rows = level_rows(&structure, &levels, args.components);
     let text = match args.format {
         LevelsFormat::Table => render_table(&model.species.to_string(), &rows),

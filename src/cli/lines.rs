@@ -8,9 +8,10 @@ use super::CliError;
 use super::assign::AirFormulaArg;
 use super::input::open_file;
 use super::output::write_output;
+use super::progress::ModelProgress;
 use crate::report::{LineSelection, LinesReport, lines_csv, lines_json, lines_table};
 use crate::structure::DipoleIntegral;
-use crate::structure::model::{LoadedModel, read_model};
+use crate::structure::model::{LoadedModel, read_model_with_progress};
 use crate::transitions::{DipoleOperator, DipoleProgress, ModelSpectrum, model_spectrum};
 
 /// Predict the electric-dipole lines of a level model: every pair of levels of
@@ -95,7 +96,10 @@ pub(crate) struct ModelLines {
 /// Read `path` and predict its lines; errors name the file.
 pub(crate) fn model_lines(path: &Path) -> Result<ModelLines, CliError> {
     let (reader, name) = open_file(path)?;
-    let loaded = read_model(reader, &name).map_err(|e| CliError::Message(e.to_string()))?;
+    let mut progress = ModelProgress::new("lines", false);
+    let loaded = read_model_with_progress(reader, &name, |p| progress.build(p));
+    progress.finish();
+    let loaded = loaded.map_err(|e| CliError::Message(e.to_string()))?;
     let structure = &loaded.structure;
     let message =
         |e: crate::transitions::TransitionError| CliError::Message(format!("{name}: {e}"));

@@ -67,7 +67,7 @@ use toml::de::{DeTable, DeValue};
 
 use super::orbital::Orbital;
 use super::parameter::{DipoleIntegral, ParameterId, Radial, Scope, scope_name};
-use super::{LevelStructure, StructureError};
+use super::{BuildProgress, LevelStructure, StructureError};
 use crate::location::Location;
 use crate::notation::{Configuration, Species};
 
@@ -229,7 +229,17 @@ fn number(value: &DeValue<'_>) -> Option<f64> {
 }
 
 /// Read a model from `reader`; `source` names it in errors.
-pub fn read_model(mut reader: impl BufRead, source: &str) -> Result<LoadedModel, ModelError> {
+pub fn read_model(reader: impl BufRead, source: &str) -> Result<LoadedModel, ModelError> {
+    read_model_with_progress(reader, source, |_| {})
+}
+
+/// [`read_model`], calling `progress` as the level structure is built (see
+/// [`LevelStructure::build_with_progress`]).
+pub fn read_model_with_progress(
+    mut reader: impl BufRead,
+    source: &str,
+    progress: impl FnMut(BuildProgress),
+) -> Result<LoadedModel, ModelError> {
     let mut bytes = Vec::new();
     reader
         .read_to_end(&mut bytes)
@@ -246,11 +256,20 @@ pub fn read_model(mut reader: impl BufRead, source: &str) -> Result<LoadedModel,
             "the text is not valid UTF-8 (save the model as UTF-8)",
         )
     })?;
-    parse_model(&text, source)
+    parse_model_with_progress(&text, source, progress)
 }
 
 /// Read a model from its text; `source` names it in errors.
 pub fn parse_model(text: &str, source: &str) -> Result<LoadedModel, ModelError> {
+    parse_model_with_progress(text, source, |_| {})
+}
+
+/// [`parse_model`], calling `progress` as the level structure is built.
+pub fn parse_model_with_progress(
+    text: &str,
+    source: &str,
+    progress: impl FnMut(BuildProgress),
+) -> Result<LoadedModel, ModelError> {
     let lines = Lines::new(source, text);
     let document = DeTable::parse(text).map_err(|e| {
         let offset = e.span().map_or(0, |s| s.start);
@@ -444,23 +463,24 @@ pub fn parse_model(text: &str, source: &str) -> Result<LoadedModel, ModelError> 
     }
 
     // Build the structure to learn which parameters are needed.
-    let structure =
-        LevelStructure::build(&configurations, &interactions).map_err(|e| match &e {
-            StructureError::ElectronCount { configuration, .. }
-            | StructureError::Duplicate { configuration } => {
-                let i = configurations
-                    .iter()
-                    .rposition(|c| c.to_string() == *configuration)
-                    .unwrap_or(0);
-                lines.error(label_offsets[i], "label", e.to_string())
-            }
-            StructureError::OppositeParity { .. } => lines.error(
-                between_offsets.first().copied().unwrap_or(0),
-                "between",
-                e.to_string(),
-            ),
-            _ => lines.error(label_offsets[0], "label", e.to_string()),
-        })?;
+    let structure = LevelStructure::build_with_progress(&configurations, &interactions, progress)
+        .map_err(|e| match &e {
+        StructureError::ElectronCount { configuration, .. }
+        | StructureError::SubshellTooLarge { configuration, .. }
+        | StructureError::Duplicate { configuration } => {
+            let i = configurations
+                .iter()
+                .rposition(|c| c.to_string() == *configuration)
+                .unwrap_or(0);
+            lines.error(label_offsets[i], "label", e.to_string())
+        }
+        StructureError::OppositeParity { .. } => lines.error(
+            between_offsets.first().copied().unwrap_or(0),
+            "between",
+            e.to_string(),
+        ),
+        _ => lines.error(label_offsets[0], "label", e.to_string()),
+    })?;
     let needed = structure.parameters();
     let names_in = |scope: Scope| -> String {
         needed
