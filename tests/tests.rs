@@ -10,6 +10,7 @@ mod digits_roundtrip;
 mod fit_cli;
 mod fit_physics;
 mod fit_roundtrip;
+mod level_search;
 mod levels_cli;
 mod lines_cli;
 mod optimize_cli;

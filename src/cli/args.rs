@@ -20,6 +20,9 @@ pub enum Command {
     /// with the probability that each match is chance.
     #[command(long_about = super::assign::LONG_ABOUT)]
     Assign(super::assign::AssignArgs),
+    /// Search the unassigned lines for new levels: energies at which several lines
+    /// combine with known levels, with allowed J and chance probability.
+    FindLevels(super::find_levels::FindLevelsArgs),
     /// Fit the free parameters of a level model to experimental levels
     /// (Levenberg–Marquardt), with standard errors and correlations.
     #[command(long_about = super::fit::LONG_ABOUT)]

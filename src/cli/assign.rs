@@ -6,15 +6,15 @@ use std::path::{Path, PathBuf};
 use clap::ValueEnum;
 
 use super::CliError;
-use super::input::{open_input, read_levels_file};
+use super::input::open_input;
+use super::level_sets::{LevelSets, level_sets};
 use super::output::{write_output, write_output_with};
 use crate::assign::{MatchConfig, MatchProgress, assign_lines_with_progress};
 use crate::levels::{
-    EMBEDDED_TABLES, EmbeddedTable, ListReach, Predictions, compiled_predictions,
-    compiled_predictions_near, embedded_stages, embedded_table, predict_from_table,
+    EMBEDDED_TABLES, ListReach, Predictions, compiled_predictions, compiled_predictions_near,
+    embedded_table, predict_from_table,
 };
 use crate::linelist::{GlobalUncertainty, LineList, ReadOptions, read_line_list};
-use crate::notation::Species;
 use crate::report::{
     AssignReport, InputSummary, TableOptions, write_assign_csv, write_assign_json,
     write_assign_table,
@@ -279,47 +279,11 @@ fn predictions(
     model_uncertainty: Option<f64>,
     reach: Option<&ListReach>,
 ) -> Result<Predictions, CliError> {
-    let mut wanted: Vec<Species> = Vec::new();
-    for name in species_names {
-        for species in requested_species(name)? {
-            // The same species named twice is asked for once (not "given twice").
-            if !wanted.contains(&species) {
-                wanted.push(species);
-            }
-        }
-    }
-    let tables = level_files
-        .iter()
-        .map(|path| read_levels_file(path))
-        .collect::<Result<Vec<_>, _>>()?;
-    let in_tables = |species: &Species| tables.iter().any(|t| t.species().contains(species));
-    let compiled: Vec<&EmbeddedTable> = if wanted.is_empty() {
-        if tables.is_empty() && models.is_empty() {
-            EMBEDDED_TABLES.iter().collect()
-        } else {
-            Vec::new()
-        }
-    } else {
-        let mut chosen = Vec::new();
-        for species in &wanted {
-            if in_tables(species) {
-                continue; // the user's table replaces the compiled one
-            }
-            chosen.push(embedded_table(*species).ok_or_else(|| {
-                CliError::Message(format!(
-                    "--species: no compiled table of {species}{}; compiled: {} (give your \
-                     own with --levels FILE)",
-                    if tables.is_empty() {
-                        ""
-                    } else {
-                        " and no level of it in the tables given with --levels"
-                    },
-                    EMBEDDED_TABLES.map(|t| t.species).join(", ")
-                ))
-            })?);
-        }
-        chosen
-    };
+    let LevelSets {
+        wanted,
+        compiled,
+        tables,
+    } = level_sets(level_files, species_names, !models.is_empty())?;
     let mut sets = Vec::new();
     for table in &tables {
         let mut set = predict_from_table(table)
@@ -375,26 +339,6 @@ fn predictions(
             "{e}; each species may come from one level table or model only"
         ))
     })
-}
-
-/// The spectra named by one --species value: a spectrum (`Fe II`, `HeI`), or an
-/// element symbol alone for every compiled stage of it (`Ar`).
-fn requested_species(name: &str) -> Result<Vec<Species>, CliError> {
-    let symbol = name.trim();
-    if let Some(z) = crate::notation::element::atomic_number(symbol) {
-        let stages = embedded_stages(z);
-        if stages.is_empty() {
-            return Err(CliError::Message(format!(
-                "--species: no compiled spectrum of {symbol}; compiled: {} (give your own \
-                 with --levels FILE, naming the stage as in \"{symbol} I\")",
-                EMBEDDED_TABLES.map(|t| t.species).join(", ")
-            )));
-        }
-        return Ok(stages.iter().map(|t| t.spectrum()).collect());
-    }
-    name.parse::<Species>()
-        .map(|s| vec![s])
-        .map_err(|e| CliError::Message(format!("--species: {e}")))
 }
 
 /// The predictions of the level model in `path`, with the model uncertainty from
@@ -454,17 +398,32 @@ fn list_species(args: &AssignArgs) -> Result<(), CliError> {
     write_output(args.output.as_deref(), text.as_bytes())
 }
 
-fn read_lines(args: &AssignArgs) -> Result<LineList, CliError> {
-    let options = ReadOptions {
-        medium: args.medium.map(|m| match m {
+/// How to read a line list, from the reading flags (shared with `find-levels`).
+pub(crate) fn read_options(
+    medium: Option<MediumArg>,
+    uncertainty: Option<GlobalUncertainty>,
+    air_formula: AirFormulaArg,
+    skip_bad: bool,
+) -> ReadOptions {
+    ReadOptions {
+        medium: medium.map(|m| match m {
             MediumArg::Air => Medium::Air,
             MediumArg::Vacuum => Medium::Vacuum,
         }),
-        uncertainty: args.uncertainty,
-        air_formula: args.air_formula.into(),
-        skip_bad: args.skip_bad,
+        uncertainty,
+        air_formula: air_formula.into(),
+        skip_bad,
         ..ReadOptions::default()
-    };
+    }
+}
+
+fn read_lines(args: &AssignArgs) -> Result<LineList, CliError> {
+    let options = read_options(
+        args.medium,
+        args.uncertainty,
+        args.air_formula,
+        args.skip_bad,
+    );
     let read_error = |e: crate::linelist::LineListError| CliError::Message(e.to_string());
     let path = args
         .lines
@@ -474,7 +433,8 @@ fn read_lines(args: &AssignArgs) -> Result<LineList, CliError> {
     read_line_list(reader, &name, &options).map_err(read_error)
 }
 
-fn report_skipped(list: &LineList) {
+/// The rows left out under --skip-bad, on standard error.
+pub(crate) fn report_skipped(list: &LineList) {
     let mut stderr = io::stderr().lock();
     for skipped in &list.skipped {
         let _ = writeln!(

@@ -7,8 +7,10 @@
 
 pub mod args;
 pub mod assign;
+pub mod find_levels;
 pub mod fit;
 pub mod input;
+pub mod level_sets;
 pub mod levels;
 pub mod lines;
 pub mod optimize;
@@ -43,6 +45,7 @@ pub fn main() -> ExitCode {
 pub fn run(cli: Cli) -> Result<(), CliError> {
     match cli.command {
         Command::Assign(args) => assign::run(args),
+        Command::FindLevels(args) => find_levels::run(args),
         Command::Fit(args) => fit::run(args),
         Command::Levels(args) => levels::run(args),
         Command::Lines(args) => lines::run(args),

@@ -15,6 +15,8 @@
 //!   their levels, flags and the rules applied, from a table ([`predict_from_table`])
 //!   or, later, from a level model. The matcher ([`crate::assign`]) reads only these.
 //! - [`optimize`]: level energies from assigned lines by weighted least squares.
+//! - [`search`]: new levels from unassigned lines (candidate energies E_k ± σ, their
+//!   clusters, J values and chance probabilities).
 //!
 //! ```
 //! use termsight::levels::{EMBEDDED_TABLES, predict_from_table};
@@ -39,6 +41,7 @@ pub mod optimize;
 mod predicted;
 mod reach;
 mod ritz;
+pub mod search;
 mod table;
 
 pub use e1::{SelectionRules, TransitionFlags};

@@ -26,6 +26,7 @@ mod compiled;
 mod csv_document;
 pub mod digits;
 mod fit;
+mod level_search;
 mod model_lines;
 mod optimize;
 
@@ -41,6 +42,9 @@ pub use assign_json::{assign_json, write_assign_json};
 pub use assign_table::{TableOptions, assign_table, write_assign_table};
 pub use compiled::{CompiledSpectrum, compiled_spectra_table};
 pub use fit::{FitReport, fit_json, fit_table};
+pub use level_search::{
+    LevelSearchReport, candidate_term, level_search_csv, level_search_json, level_search_table,
+};
 pub use model_lines::{
     DipoleValue, LINE_COLUMNS, LineRow, LineSelection, LinesReport, lines_csv, lines_json,
     lines_table,
