@@ -69,7 +69,8 @@ pub struct FindLevelsArgs {
     pub max_probability: f64,
 
     /// Count the density of candidate energies for the chance probability within
-    /// FACTOR times a candidate's tolerance on either side of it.
+    /// FACTOR times the search's largest tolerance (K times the largest combined
+    /// uncertainty) on either side of a candidate.
     #[arg(long = "density-window", value_name = "FACTOR", default_value_t = SearchConfig::DEFAULT_DENSITY_WINDOW_FACTOR)]
     pub density_window: f64,
 

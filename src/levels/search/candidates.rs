@@ -78,7 +78,16 @@ pub struct Problem {
     pub(crate) max_uncertainty: f64,
     /// Pairs per slab, about ([`POINTS_PER_SLAB`]; tests make it small).
     pub(crate) points_per_slab: usize,
+    /// Smallest u_c of any pair, cm⁻¹.
+    min_uncertainty: f64,
+    /// For n lines (the index), the largest λ at which n lines can still be
+    /// reported: a quick test that spares most sweep peaks the full judgement.
+    lambda_limits: Vec<f64>,
 }
+
+/// Line counts for which [`Problem::lambda_limits`] is tabulated; above, every peak
+/// is judged in full.
+const LIMITS_UP_TO: usize = 64;
 
 impl Problem {
     /// Prepare a search.
@@ -130,6 +139,11 @@ impl Problem {
             let sigma = sorted.last().map_or(0.0, |l| l.sigma);
             (0.0, top + sigma + 1.0)
         });
+        let min_uncertainty = sorted
+            .iter()
+            .map(|l| l.uncertainty)
+            .fold(f64::MAX, f64::min)
+            .hypot(known.iter().map(|l| l.uncertainty).fold(f64::MAX, f64::min));
         let mut problem = Problem {
             lines: sorted,
             known,
@@ -139,17 +153,37 @@ impl Problem {
             config: *config,
             max_uncertainty: max_line_u.hypot(max_level_u),
             points_per_slab: POINTS_PER_SLAB,
+            min_uncertainty,
+            lambda_limits: Vec::new(),
         };
         problem.total_points = [Parity::Even, Parity::Odd]
             .iter()
             .map(|&p| problem.count_points(p, range.0, range.1))
             .sum();
+        problem.lambda_limits = (0..=LIMITS_UP_TO)
+            .map(|n| lambda_limit(n, problem.total_points, config.max_chance_probability()))
+            .collect();
         problem
+    }
+
+    /// Whether a peak of `lines` distinct lines at local density `rho` may give a
+    /// candidate that is reported: false only when even the narrowest spread of
+    /// pairs (the smallest u_c of the search) would be too likely by chance.
+    pub(crate) fn may_report(&self, lines: usize, rho: f64) -> bool {
+        let lambda = 2.0 * self.config.tolerance_sigma() * self.min_uncertainty * rho;
+        self.lambda_limits
+            .get(lines)
+            .is_none_or(|&limit| lambda <= limit)
     }
 
     /// The largest tolerance k·u_c of any pair, cm⁻¹.
     fn max_tolerance(&self) -> f64 {
         self.config.tolerance_sigma() * self.max_uncertainty
+    }
+
+    /// The half-width of the density window: F times the largest tolerance, cm⁻¹.
+    pub(crate) fn density_half_window(&self) -> f64 {
+        self.config.density_window_factor() * self.max_tolerance()
     }
 
     /// Indices into the sorted lines with σ in [low, high].
@@ -217,9 +251,33 @@ impl Problem {
                 }
             }
         }
-        out.sort_by(|a, b| a.energy.total_cmp(&b.energy));
+        out.sort_unstable_by(|a, b| a.energy.total_cmp(&b.energy));
         out
     }
+}
+
+/// The largest λ at which `n` lines reach a chance probability of at most `max_p`
+/// among `trials` candidate energies (bisection on log λ; the probability grows with
+/// λ), made a little larger so that rounding never drops a reportable peak.
+fn lambda_limit(n: usize, trials: usize, max_p: f64) -> f64 {
+    use super::significance::{local_probability, with_look_elsewhere};
+    let p = |lambda: f64| with_look_elsewhere(local_probability(n, lambda), trials);
+    let (mut low, mut high) = (-700.0f64, 30.0f64); // ln λ
+    if p(high.exp()) <= max_p {
+        return f64::INFINITY;
+    }
+    if p(low.exp()) > max_p {
+        return 0.0;
+    }
+    for _ in 0..80 {
+        let mid = 0.5 * (low + high);
+        if p(mid.exp()) <= max_p {
+            low = mid;
+        } else {
+            high = mid;
+        }
+    }
+    high.exp() * 1.001
 }
 
 /// One slab to sweep: a parity and the energies [low, high) whose peaks it owns.
@@ -292,7 +350,7 @@ fn sweep(problem: &Problem, slab: &Slab) -> Vec<Cluster> {
         events.push((p.energy - t, false, i as u32));
         events.push((p.energy + t, true, i as u32));
     }
-    events.sort_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+    events.sort_unstable_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)).then(a.2.cmp(&b.2)));
 
     let mut per_line = vec![0u32; problem.lines.len()];
     let mut distinct = 0usize;
@@ -325,6 +383,10 @@ fn sweep(problem: &Problem, slab: &Slab) -> Vec<Cluster> {
             && position < slab.high
             && position >= problem.range.0
             && position <= problem.range.1
+            && problem.may_report(
+                distinct,
+                peak_density(problem, &points, position, active.len()),
+            )
         {
             let members: Vec<Point> = active
                 .iter()
@@ -356,6 +418,18 @@ fn sweep(problem: &Problem, slab: &Slab) -> Vec<Cluster> {
         }
     }
     out
+}
+
+/// The density of pairs around `peak`, the `own` pairs of the peak left out: as
+/// [`super::cluster::build`] counts it.
+pub(crate) fn peak_density(problem: &Problem, sorted: &[Point], peak: f64, own: usize) -> f64 {
+    let half_window = problem.density_half_window();
+    super::significance::density(
+        count_between(sorted, peak - half_window, peak + half_window),
+        own,
+        peak,
+        half_window,
+    )
 }
 
 /// The number of points of `sorted` (by energy) in [low, high].

@@ -2,9 +2,9 @@
 //! level: one pair per line and per known level, the J values allowed, the weighted
 //! mean energy and its chance probability.
 
-use super::candidates::{Point, Problem, count_between};
+use super::candidates::{Point, Problem, peak_density};
 use super::jcompat::choose_j;
-use super::significance::{density, local_probability, with_look_elsewhere};
+use super::significance::{local_probability, with_look_elsewhere};
 use crate::notation::Parity;
 
 /// A candidate level as the search keeps it.
@@ -42,12 +42,11 @@ pub(crate) fn build(
 ) -> Option<Cluster> {
     let config = &problem.config;
     let k = config.tolerance_sigma();
-    let (u_min, u_max) = members.iter().fold((f64::MAX, 0.0f64), |(lo, hi), p| {
-        (lo.min(p.uncertainty), hi.max(p.uncertainty))
-    });
-    let half_window = config.density_window_factor() * k * u_max;
-    let in_window = count_between(sorted, peak - half_window, peak + half_window);
-    let rho = density(in_window, members.len(), peak, half_window);
+    let u_min = members
+        .iter()
+        .map(|p| p.uncertainty)
+        .fold(f64::MAX, f64::min);
+    let rho = peak_density(problem, sorted, peak, members.len());
 
     // The most the cluster can achieve: every distinct line, the narrowest spread.
     let mut lines: Vec<u32> = members.iter().map(|p| p.line).collect();

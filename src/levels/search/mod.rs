@@ -168,7 +168,8 @@ impl SearchConfig {
     }
 
     /// The density of candidate energies around a candidate is counted within
-    /// ±FACTOR times its tolerance, FACTOR from 10 to 100000. Default: 300.
+    /// ±FACTOR times the largest tolerance k·u_c of the search, FACTOR from 10 to
+    /// 100000. Default: 300.
     pub fn with_density_window_factor(mut self, factor: f64) -> Result<Self, SearchConfigError> {
         if !(10.0..=1e5).contains(&factor) {
             return Err(out_of_range("a factor from 10 to 100000", factor));

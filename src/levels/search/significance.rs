@@ -15,8 +15,9 @@
 //! The search looks at every one of its N candidate energies, so the probability
 //! that some such cluster appears anywhere by chance is at most N·p; it is given as
 //! 1 − (1 − p)^N, which equals N·p where that is small and stays below 1 (the N
-//! trials taken as independent). ρ is counted in a window ±F·t around the
-//! candidate (F the density window factor), the candidate's own points left out and
+//! trials taken as independent). ρ is counted in a window ±F·t_max around the
+//! candidate (F the density window factor, t_max the largest tolerance k·u_c of the
+//! search), the pairs that hold the candidate's energy left out and
 //! no fewer than one counted (a window can show no finer density than one point),
 //! over the window's length cut at E = 0.
 
