@@ -21,6 +21,8 @@
 //! - [`transitions`]: E1 selection rules, line strengths, gf and A values.
 //! - [`assign`]: candidate search, ranking, chance-coincidence probabilities, blends.
 //! - [`fit`]: least-squares fits of model parameters to observed levels.
+//! - [`plasma`]: plasma temperature and electron density from assigned lines (Boltzmann,
+//!   Saha–Boltzmann, Stark widths, LTE check).
 //! - [`report`]: terminal tables, CSV and JSON writers (return strings, never touch files).
 //! - [`cli`]: the command-line front end; the only module that reads or writes files.
 //!
@@ -35,6 +37,7 @@ pub mod levels;
 pub mod linelist;
 pub mod location;
 pub mod notation;
+pub mod plasma;
 pub mod radial;
 pub mod report;
 pub mod structure;

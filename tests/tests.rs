@@ -16,6 +16,7 @@ mod levels_cli;
 mod lines_cli;
 mod optimize_cli;
 mod optimize_reference;
+mod plasma_synthetic;
 mod radial;
 mod structure_physics;
 mod structure_tables;

@@ -36,6 +36,19 @@ pub const ELEMENTARY_CHARGE_C: f64 = 1.602_176_634e-19;
 /// Electron mass m_e = 9.1093837015e-31 kg (CODATA 2018).
 pub const ELECTRON_MASS_KG: f64 = 9.109_383_701_5e-31;
 
+/// Boltzmann constant k = 1.380649e-23 J/K (exact since the 2019 SI; CODATA 2018).
+pub const BOLTZMANN_J_K: f64 = 1.380_649e-23;
+
+/// Second radiation constant c₂ = hc/k = 1.438776877… cm K (exact since the 2019 SI;
+/// CODATA 2018): an energy of E cm⁻¹ is E·c₂ kelvin, and kT in cm⁻¹ is T/c₂.
+pub const SECOND_RADIATION_CM_K: f64 = 1.438_776_877_503_933_8;
+
+/// Atomic mass constant m_u = 1.66053906660e-27 kg (CODATA 2018).
+pub const ATOMIC_MASS_KG: f64 = 1.660_539_066_60e-27;
+
+/// Vacuum electric permittivity ε₀ = 8.8541878128e-12 F/m (CODATA 2018).
+pub const VACUUM_PERMITTIVITY_F_M: f64 = 8.854_187_812_8e-12;
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -45,5 +58,13 @@ mod tests {
         // CODATA 2018: E_h = 2 R∞ hc; E_h / e = 27.211386245988 V.
         assert!((HARTREE_CM1 - 2.0 * RYDBERG_INFINITY_CM1).abs() < 1e-6);
         assert!((HARTREE_CM1 / EV_CM1 - HARTREE_EV).abs() < 1e-11);
+    }
+
+    #[test]
+    fn second_radiation_constant_is_hc_over_k() {
+        // CODATA 2018: c₂ = hc/k = 1.438776877e-2 m K.
+        let c2_cm_k = PLANCK_CONSTANT_J_S * SPEED_OF_LIGHT_M_S / BOLTZMANN_J_K * 100.0;
+        assert!((c2_cm_k - SECOND_RADIATION_CM_K).abs() < 1e-12);
+        assert!((SECOND_RADIATION_CM_K - 1.438_776_877).abs() < 1e-9);
     }
 }
