@@ -13,6 +13,7 @@ pub mod levels;
 pub mod lines;
 pub mod optimize;
 pub mod output;
+pub mod paths;
 pub mod radial;
 
 use std::io::{self, Write};
