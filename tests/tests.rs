@@ -17,5 +17,6 @@ mod optimize_reference;
 mod radial;
 mod structure_physics;
 mod structure_tables;
+mod trust_cli;
 mod units;
 mod util;
