@@ -128,10 +128,11 @@ fn starting_model_of_helium_runs_through_levels_and_lines() {
         String::from_utf8_lossy(&levels.stderr)
     );
     let levels = String::from_utf8(levels.stdout).unwrap();
+    // The `#` line of the energy scale, then the header.
     let rows: Vec<Vec<&str>> = levels
         .lines()
-        .skip(1)
-        .map(|l| l.split(',').collect())
+        .skip(2)
+        .map(|l| l.split(',').skip(1).collect())
         .collect();
     // 1s²: 1 level, 1s2s: 2, 1s2p: 4 (common practice, no source).
     assert_eq!(rows.len(), 7, "{levels}");

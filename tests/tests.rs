@@ -20,5 +20,6 @@ mod plasma_synthetic;
 mod radial;
 mod structure_physics;
 mod structure_tables;
+mod trust_cli;
 mod units;
 mod util;

@@ -71,7 +71,7 @@ pub struct AssignArgs {
     /// Standard uncertainty of the model's level energies, cm⁻¹, combined in
     /// quadrature with each observed line's uncertainty when matching its lines.
     /// [default: model_uncertainty_cm1 of the model file]
-    #[arg(long = "model-uncertainty", value_name = "CM1")]
+    #[arg(long = "model-uncertainty", value_name = "CM1", requires = "model")]
     pub model_uncertainty: Option<f64>,
 
     /// Accept a candidate when it lies within K combined standard uncertainties of the
@@ -112,7 +112,7 @@ pub struct AssignArgs {
 
     /// Standard uncertainty of lines that do not give one, with its unit: 0.002nm,
     /// 0.02A, 0.05cm-1.
-    #[arg(long, value_name = "VALUE")]
+    #[arg(long, value_name = "VALUE", allow_hyphen_values = true)]
     pub uncertainty: Option<GlobalUncertainty>,
 
     /// Refractive index of standard air used to convert air wavelengths:
@@ -124,6 +124,11 @@ pub struct AssignArgs {
     /// instead of stopping at the first one.
     #[arg(long = "skip-bad")]
     pub skip_bad: bool,
+
+    /// Allow an output file to be one of the input files (replaced once the output
+    /// is complete); without it such a run is refused.
+    #[arg(long = "overwrite-input")]
+    pub overwrite_input: bool,
 }
 
 /// The long description of `termsight assign --help`.
@@ -205,6 +210,7 @@ pub fn run(args: AssignArgs) -> Result<(), CliError> {
     if args.list_species {
         return list_species(&args);
     }
+    check_paths(&args)?;
     let config = match_config(&args)?;
     // The list first: the compiled spectra are predicted only where its lines reach.
     let list = read_lines(&args)?;
@@ -252,6 +258,35 @@ pub fn run(args: AssignArgs) -> Result<(), CliError> {
         Format::Csv => write_assign_csv(&report, out),
         Format::Json => write_assign_json(&report, out),
     })
+}
+
+/// Refuse an output onto an input (see [`super::paths`]).
+fn check_paths(args: &AssignArgs) -> Result<(), CliError> {
+    use super::paths::{NamedPath, check_outputs};
+    let mut inputs: Vec<NamedPath<'_>> = Vec::new();
+    if let Some(path) = &args.lines {
+        inputs.push(NamedPath {
+            option: "LINES",
+            path,
+        });
+    }
+    inputs.extend(args.levels.iter().map(|path| NamedPath {
+        option: "--levels",
+        path,
+    }));
+    inputs.extend(args.model.iter().map(|path| NamedPath {
+        option: "--model",
+        path,
+    }));
+    let outputs: Vec<NamedPath<'_>> = args
+        .output
+        .iter()
+        .map(|path| NamedPath {
+            option: "--output",
+            path,
+        })
+        .collect();
+    check_outputs(&inputs, &outputs, args.overwrite_input)
 }
 
 fn match_config(args: &AssignArgs) -> Result<MatchConfig, CliError> {

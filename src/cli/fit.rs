@@ -8,6 +8,7 @@ use std::time::{Duration, Instant};
 use super::CliError;
 use super::input::{open_file, read_levels_file};
 use super::output::{write_atomically, write_output};
+use super::paths::{NamedPath, check_outputs};
 use super::progress::ModelProgress;
 use crate::fit::{Convergence, FitOptions, FitProgress, Weighting, fit_levels, simple_picture};
 use crate::levels::{EMBEDDED_TABLES, LevelTable, embedded_table};
@@ -65,20 +66,17 @@ pub enum WeightsArg {
     Uncertainty,
 }
 
-/// Arguments of `termsight fit`.
+/// Arguments of `termsight fit`: the experimental levels come from --levels or
+/// --species, one of the two.
 #[derive(Debug, clap::Args)]
+#[command(group(clap::ArgGroup::new("level_source").required(true).args(["levels", "species"])))]
 pub struct FitArgs {
     /// The level model of the ion (TOML), whose free parameters are fitted.
     pub model: PathBuf,
     /// The experimental levels: a level table (CSV with the columns
     /// species,configuration,term,J,energy_cm1,uncertainty_cm1,source), such as
     /// `termsight optimize` writes.
-    #[arg(
-        long,
-        value_name = "FILE",
-        required_unless_present = "species",
-        conflicts_with = "species"
-    )]
+    #[arg(long, value_name = "FILE", conflicts_with = "species")]
     pub levels: Option<PathBuf>,
     /// Fit to the compiled level table of this spectrum instead ("He I"); it must be
     /// the model's species (the 29 compiled spectra: `termsight assign --list-species`).
@@ -111,6 +109,10 @@ pub struct FitArgs {
     /// Print no progress lines on standard error.
     #[arg(long)]
     pub quiet: bool,
+    /// Allow an output file to be one of the input files (replaced once the output
+    /// is complete); without it such a run is refused.
+    #[arg(long = "overwrite-input")]
+    pub overwrite_input: bool,
 }
 
 /// Progress lines start once a fit has run this long.
@@ -118,6 +120,30 @@ const PROGRESS_AFTER: Duration = Duration::from_secs(1);
 
 /// Run `termsight fit`.
 pub fn run(args: FitArgs) -> Result<(), CliError> {
+    let mut inputs = vec![NamedPath {
+        option: "MODEL",
+        path: &args.model,
+    }];
+    if let Some(path) = &args.levels {
+        inputs.push(NamedPath {
+            option: "--levels",
+            path,
+        });
+    }
+    let mut outputs = Vec::new();
+    if let Some(path) = &args.output {
+        outputs.push(NamedPath {
+            option: "--output",
+            path,
+        });
+    }
+    if let Some(path) = &args.model_out {
+        outputs.push(NamedPath {
+            option: "--model-out",
+            path,
+        });
+    }
+    check_outputs(&inputs, &outputs, args.overwrite_input)?;
     let (reader, model_path) = open_file(&args.model)?;
     let mut progress = ModelProgress::new("fit", args.quiet);
     let loaded = read_model_with_progress(reader, &model_path, |p| progress.build(p));

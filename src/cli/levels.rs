@@ -9,6 +9,7 @@ use serde::Serialize;
 use super::CliError;
 use super::input::open_file;
 use super::output::write_output;
+use super::paths::{NamedPath, check_outputs};
 use super::progress::ModelProgress;
 use crate::structure::model::{LoadedModel, read_model_with_progress};
 use crate::structure::{Level, LevelStructure};
@@ -38,10 +39,30 @@ pub struct LevelsArgs {
     /// How many further LS components to list after the leading one.
     #[arg(long, default_value_t = 2)]
     pub components: usize,
+    /// Allow an output file to be one of the input files (replaced once the output
+    /// is complete); without it such a run is refused.
+    #[arg(long = "overwrite-input")]
+    pub overwrite_input: bool,
 }
 
 /// Run `termsight levels`.
 pub fn run(args: LevelsArgs) -> Result<(), CliError> {
+    let outputs: Vec<NamedPath<'_>> = args
+        .output
+        .iter()
+        .map(|path| NamedPath {
+            option: "--output",
+            path,
+        })
+        .collect();
+    check_outputs(
+        &[NamedPath {
+            option: "MODEL",
+            path: &args.model,
+        }],
+        &outputs,
+        args.overwrite_input,
+    )?;
     let (reader, path) = open_file(&args.model)?;
     let mut progress = ModelProgress::new("levels", false);
     let loaded = read_model_with_progress(reader, &path, |p| progress.build(p));
@@ -72,7 +93,9 @@ pub struct ComponentRow {
 /// One printed level.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct LevelRow {
-    /// Energy in cm⁻¹.
+    /// Its number, 1 = lowest: `termsight lines` names the levels of each line by it.
+    pub level: usize,
+    /// Energy in cm⁻¹ on the model's own scale (the zero of its E_av parameters).
     pub energy_cm1: f64,
     /// J, `3/2`.
     #[serde(rename = "J")]
@@ -95,10 +118,12 @@ pub struct LevelRow {
 pub fn level_rows(structure: &LevelStructure, levels: &[Level], further: usize) -> Vec<LevelRow> {
     levels
         .iter()
-        .map(|level| {
+        .enumerate()
+        .map(|(index, level)| {
             let label = |state| structure.state_label(level.block, state).to_string();
             let leading = level.composition.first();
             LevelRow {
+                level: index + 1,
                 energy_cm1: level.energy_cm1,
                 j: level.j.to_string(),
                 parity: level.parity.to_string(),
@@ -126,6 +151,7 @@ pub fn render_table(species: &str, rows: &[LevelRow]) -> String {
     let mut table = Table::new();
     table.load_style(presets::UTF8_BORDERS_ONLY);
     table.set_header(vec![
+        "#",
         "energy (cm⁻¹)",
         "J",
         "parity",
@@ -143,6 +169,7 @@ pub fn render_table(species: &str, rows: &[LevelRow]) -> String {
             .collect::<Vec<_>>()
             .join(", ");
         table.add_row(vec![
+            row.level.to_string(),
             format!("{:.3}", row.energy_cm1),
             row.j.clone(),
             row.parity.clone(),
@@ -152,19 +179,29 @@ pub fn render_table(species: &str, rows: &[LevelRow]) -> String {
             format!("{:.4}", row.lande_g),
         ]);
     }
-    for column in [0, 1, 4, 6] {
+    for column in [0, 1, 2, 5, 7] {
         if let Some(c) = table.column_mut(column) {
             c.set_cell_alignment(CellAlignment::Right);
         }
     }
-    format!("{species}: {} levels\n{table}\n", rows.len())
+    format!(
+        "{species}: {} levels; {ENERGY_SCALE}\n{table}\n",
+        rows.len()
+    )
 }
 
-/// CSV: `energy_cm1,J,parity,configuration,leading_term,leading_percent,further_components,lande_g`;
+/// What the energies are, atop every output of `termsight levels`.
+pub const ENERGY_SCALE: &str = "energies in cm⁻¹ on the model's own scale (the zero of its \
+E_av parameters, as in termsight lines and fit); levels numbered from the lowest, as \
+termsight lines names them";
+
+/// CSV: a `#` line saying what the energies are ([`ENERGY_SCALE`]), then
+/// `level,energy_cm1,J,parity,configuration,leading_term,leading_percent,further_components,lande_g`;
 /// further components as `label:percent` separated by `;`.
 pub fn render_csv(rows: &[LevelRow]) -> String {
     let mut writer = csv::Writer::from_writer(Vec::new());
     let header = [
+        "level",
         "energy_cm1",
         "J",
         "parity",
@@ -183,6 +220,7 @@ pub fn render_csv(rows: &[LevelRow]) -> String {
             .collect::<Vec<_>>()
             .join(";");
         records.push(vec![
+            row.level.to_string(),
             format!("{:.6}", row.energy_cm1),
             row.j.clone(),
             row.parity.clone(),
@@ -198,12 +236,16 @@ pub fn render_csv(rows: &[LevelRow]) -> String {
         let _ = writer.write_record(&record);
     }
     let bytes = writer.into_inner().unwrap_or_default();
-    String::from_utf8(bytes).unwrap_or_default()
+    format!(
+        "# {ENERGY_SCALE}\n{}",
+        String::from_utf8(bytes).unwrap_or_default()
+    )
 }
 
-/// JSON: an array of [`LevelRow`].
+/// JSON: `{"description": ENERGY_SCALE, "levels": [LevelRow…]}`.
 pub fn render_json(rows: &[LevelRow]) -> String {
-    let mut text = serde_json::to_string_pretty(rows).unwrap_or_else(|_| "[]".into());
+    let document = serde_json::json!({ "description": ENERGY_SCALE, "levels": rows });
+    let mut text = serde_json::to_string_pretty(&document).unwrap_or_else(|_| "{}".into());
     text.push('\n');
     text
 }
@@ -244,15 +286,22 @@ mod tests {
         let rows = rows();
         let csv = render_csv(&rows);
         let mut lines = csv.lines();
+        assert!(
+            lines
+                .next()
+                .unwrap()
+                .starts_with("# energies in cm⁻¹ on the model's own scale")
+        );
         assert_eq!(
             lines.next().unwrap(),
-            "energy_cm1,J,parity,configuration,leading_term,leading_percent,further_components,lande_g"
+            "level,energy_cm1,J,parity,configuration,leading_term,leading_percent,further_components,lande_g"
         );
-        assert_eq!(csv.lines().count(), 5);
+        assert_eq!(csv.lines().count(), 6);
         let json: serde_json::Value = serde_json::from_str(&render_json(&rows)).unwrap();
-        assert_eq!(json.as_array().unwrap().len(), 4);
-        assert_eq!(json[0]["J"], "0");
+        assert_eq!(json["levels"].as_array().unwrap().len(), 4);
+        assert_eq!(json["levels"][0]["J"], "0");
+        assert_eq!(json["levels"][3]["level"], 4);
         let table = render_table("Mg I", &rows);
-        assert!(table.contains("3s.3p 3P°") && table.starts_with("Mg I: 4 levels"));
+        assert!(table.contains("3s.3p 3P°") && table.starts_with("Mg I: 4 levels; energies"));
     }
 }

@@ -8,6 +8,7 @@ use super::CliError;
 use super::assign::AirFormulaArg;
 use super::input::open_file;
 use super::output::write_output;
+use super::paths::{NamedPath, check_outputs};
 use super::progress::ModelProgress;
 use crate::report::{LineSelection, LinesReport, lines_csv, lines_json, lines_table};
 use crate::structure::DipoleIntegral;
@@ -54,6 +55,11 @@ pub struct LinesArgs {
     /// Write to FILE instead of standard output (it appears complete or not at all).
     #[arg(short = 'o', long, value_name = "FILE")]
     pub output: Option<PathBuf>,
+
+    /// Allow an output file to be one of the input files (replaced once the output
+    /// is complete); without it such a run is refused.
+    #[arg(long = "overwrite-input")]
+    pub overwrite_input: bool,
 }
 
 const AFTER_HELP: &str = "\
@@ -145,6 +151,22 @@ pub(crate) fn model_lines(path: &Path) -> Result<ModelLines, CliError> {
 
 /// Run `termsight lines`.
 pub fn run(args: LinesArgs) -> Result<(), CliError> {
+    let outputs: Vec<NamedPath<'_>> = args
+        .output
+        .iter()
+        .map(|path| NamedPath {
+            option: "--output",
+            path,
+        })
+        .collect();
+    check_outputs(
+        &[NamedPath {
+            option: "MODEL",
+            path: &args.model,
+        }],
+        &outputs,
+        args.overwrite_input,
+    )?;
     for (flag, value) in [("from", args.from_nm), ("to", args.to_nm)] {
         if value.is_some_and(|v| !(v.is_finite() && v > 0.0)) {
             return Err(CliError::Message(format!(

@@ -15,6 +15,7 @@ pub mod levels;
 pub mod lines;
 pub mod optimize;
 pub mod output;
+pub mod paths;
 mod progress;
 pub mod radial;
 

@@ -1,6 +1,7 @@
 //! `termsight optimize ASSIGNED.csv`: level energies from the accepted assignments,
 //! by weighted least squares, with Ritz wavenumbers and wavelengths of every line.
 
+use std::io::Write;
 use std::path::PathBuf;
 
 use clap::ValueEnum;
@@ -9,6 +10,7 @@ use super::CliError;
 use super::assign::AirFormulaArg;
 use super::input::open_input;
 use super::output::{write_atomically, write_output};
+use super::paths::{NamedPath, check_outputs};
 use crate::levels::LevelLabel;
 use crate::levels::optimize::{
     BlendPolicy, ClassifiedLines, OptimizeOptions, SpectrumError, optimize_classified,
@@ -109,10 +111,35 @@ pub struct OptimizeArgs {
     /// List every line in the terminal output, not only the outliers.
     #[arg(long = "show-lines")]
     pub show_lines: bool,
+    /// Allow an output file to be one of the input files (replaced once the output
+    /// is complete); without it such a run is refused.
+    #[arg(long = "overwrite-input")]
+    pub overwrite_input: bool,
 }
 
 /// Run `termsight optimize`.
 pub fn run(args: OptimizeArgs) -> Result<(), CliError> {
+    let mut outputs = Vec::new();
+    if let Some(path) = &args.output {
+        outputs.push(NamedPath {
+            option: "--output",
+            path,
+        });
+    }
+    if let Some(path) = &args.lines_out {
+        outputs.push(NamedPath {
+            option: "--lines-out",
+            path,
+        });
+    }
+    check_outputs(
+        &[NamedPath {
+            option: "ASSIGNED",
+            path: &args.assigned,
+        }],
+        &outputs,
+        args.overwrite_input,
+    )?;
     let options = options(&args)?;
     let default_species = args
         .species
@@ -128,6 +155,17 @@ pub fn run(args: OptimizeArgs) -> Result<(), CliError> {
         SpectrumError::WidenedTooFar { .. } => CliError::Message(e.to_string()),
         _ => CliError::Message(format!("{}: {e}", input.source)),
     })?;
+    // The description says it too; the terminal hears of it when the report goes
+    // elsewhere.
+    if args.format != Format::Table || args.output.is_some() {
+        for loss in &report.lost_to_blends {
+            let _ = writeln!(
+                std::io::stderr(),
+                "termsight: warning: {}",
+                crate::report::blend_loss_text(loss)
+            );
+        }
+    }
     let context = OptimizeContext {
         source: &input.source,
         options: &options,

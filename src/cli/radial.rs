@@ -29,6 +29,22 @@ use crate::units::constants::HARTREE_CM1;
 use super::CliError;
 use super::output::write_atomically;
 
+/// The value of --charge: a whole number ≥ 0, with a message that says what the
+/// charge means instead of quoting the range of an integer type.
+fn parse_charge(text: &str) -> Result<u32, String> {
+    const MEANING: &str = "the charge is 0 for a neutral atom, 1 for a singly charged \
+                           ion (Fe II), 2 for a doubly charged one (Fe III), …";
+    match text.trim().parse::<i64>() {
+        Ok(charge) if charge < 0 => Err(format!(
+            "{charge} is negative: {MEANING}; negative ions are not computed"
+        )),
+        Ok(charge) => u32::try_from(charge).map_err(|_| {
+            format!("{charge} is far more than any element's nuclear charge: {MEANING}")
+        }),
+        Err(_) => Err(format!("'{text}' is not a whole number: {MEANING}")),
+    }
+}
+
 /// Arguments of `termsight radial`.
 #[derive(Debug, Clone, clap::Args)]
 pub struct RadialArgs {
@@ -37,7 +53,7 @@ pub struct RadialArgs {
     pub element: String,
     /// Charge of the ion: 0 for the neutral atom, 1 for Fe II, … [default: 0, or
     /// what a spectrum given to --element says].
-    #[arg(long)]
+    #[arg(long, value_parser = parse_charge, allow_hyphen_values = true)]
     pub charge: Option<u32>,
     /// A configuration, written `1s2 2s2 2p6 3s 3p` or `1s2.2s2.2p6.3s.3p`, with
     /// every electron of the ion. Repeat for more configurations; E_av differences

@@ -36,6 +36,7 @@
 pub(crate) mod csv_text;
 pub mod e1;
 mod embedded;
+mod formable;
 mod label;
 pub mod optimize;
 mod predicted;

@@ -348,7 +348,7 @@ fn read_row(
         .map_err(|e| bad("species", format!("{e}")))?;
     let label = LevelLabel::from_fields(field(1), field(2), field(3))
         .map_err(|e| bad(e.part, e.problem))?;
-    for warning in label.warnings() {
+    for warning in label.warnings().into_iter().chain(label.unformable_term()) {
         warnings.push(TableWarning {
             location: Location::line(source, line).column(warning.part),
             problem: format!("{}; the level is kept", warning.problem),

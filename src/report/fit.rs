@@ -137,9 +137,10 @@ fn summary(report: &FitReport<'_>) -> String {
         ),
         Convergence::StoppedAtLimit => writeln!(
             text,
-            "WARNING: stopped at the limit of {} evaluations before converging; the values \
-             are the best found.",
-            r.evaluations
+            "WARNING: stopped at the evaluation limit ({} evaluations of the levels after {} \
+             iterations) before converging: not a converged fit; the values are the best \
+             found. Allow more with --max-evaluations.",
+            r.evaluations, r.iterations
         ),
         Convergence::NothingToFit => {
             writeln!(

@@ -50,8 +50,8 @@ pub use model_lines::{
     lines_table,
 };
 pub use optimize::{
-    OPTIMIZED_LEVEL_EXTRA_COLUMNS, OPTIMIZED_LINE_COLUMNS, OptimizeContext, optimize_description,
-    optimize_json, optimize_table, optimized_levels_csv, optimized_lines_csv,
+    OPTIMIZED_LEVEL_EXTRA_COLUMNS, OPTIMIZED_LINE_COLUMNS, OptimizeContext, blend_loss_text,
+    optimize_description, optimize_json, optimize_table, optimized_levels_csv, optimized_lines_csv,
 };
 
 /// What the outputs say about the measured line list.

@@ -217,6 +217,28 @@ struct Entry {
     uncertainty: Option<f64>,
 }
 
+/// The largest parameter value or uncertainty a model may give, cm⁻¹ (about
+/// 1.2 MeV): ten times the binding energy of a 1s electron in the heaviest ions,
+/// beyond any atomic parameter, and small enough that energies keep digits below
+/// 1 cm⁻¹ (a value such as 1e300 would swallow every other and print 300 digits).
+pub const MAX_PARAMETER_CM1: f64 = 1e10;
+
+/// `value` when it is at most [`MAX_PARAMETER_CM1`] in size, else the error for
+/// `field` at `offset`.
+fn bounded(lines: &Lines<'_>, offset: usize, field: &str, value: f64) -> Result<f64, ModelError> {
+    if value.abs() > MAX_PARAMETER_CM1 {
+        return Err(lines.error(
+            offset,
+            field,
+            format!(
+                "{value:e} cm⁻¹ is out of range: an atomic parameter is at most \
+                 {MAX_PARAMETER_CM1:e} cm⁻¹ in size (check the unit: cm⁻¹, not Hz or eV)"
+            ),
+        ));
+    }
+    Ok(value)
+}
+
 fn number(value: &DeValue<'_>) -> Option<f64> {
     let parsed = match value {
         DeValue::Integer(i) => i64::from_str_radix(i.as_str(), i.radix())
@@ -740,10 +762,24 @@ fn read_entries(
                         number(v.get_ref()).ok_or_else(|| lines.error(here, &field, "not a number"))
                     };
                     match k.get_ref().as_ref() {
-                        "value" => entry.value = Some(num(v)?),
-                        "ratio" => entry.ratio = num(v)?,
+                        "value" => entry.value = Some(bounded(lines, here, &field, num(v)?)?),
+                        "ratio" => {
+                            let ratio = num(v)?;
+                            if ratio == 0.0 {
+                                return Err(lines.error(
+                                    here,
+                                    &field,
+                                    format!(
+                                        "a ratio of 0 would hold {name} at 0 whatever the \
+                                         other parameter does; to keep it at 0 write \
+                                         {{ value = 0, vary = \"fixed\" }}"
+                                    ),
+                                ));
+                            }
+                            entry.ratio = bounded(lines, here, &field, ratio)?;
+                        }
                         "uncertainty" => {
-                            let u = num(v)?;
+                            let u = bounded(lines, here, &field, num(v)?)?;
                             if u < 0.0 {
                                 return Err(lines.error(
                                     here,
@@ -789,13 +825,14 @@ fn read_entries(
                 }
             }
             other => {
-                entry.value = Some(number(other).ok_or_else(|| {
+                let value = number(other).ok_or_else(|| {
                     lines.error(
                         at,
                         name,
                         "not a number; give a value in cm⁻¹ or a table { value = … }",
                     )
-                })?);
+                })?;
+                entry.value = Some(bounded(lines, at, name, value)?);
             }
         }
         out.push(entry);
