@@ -19,7 +19,8 @@
 //! - [`radial`]: Hartree–Fock radial wavefunctions, Slater, spin–orbit and dipole
 //!   integrals, and starting level models from them.
 //! - [`transitions`]: E1 selection rules, line strengths, gf and A values.
-//! - [`assign`]: candidate search, ranking, chance-coincidence probabilities, blends.
+//! - [`plasma`]: predicted line intensities and the excitation temperature (Boltzmann plot).
+//! - [`assign`]: candidate search, ranking by likelihood, chance-coincidence probabilities, blends, species verdicts.
 //! - [`fit`]: least-squares fits of model parameters to observed levels.
 //! - [`report`]: terminal tables, CSV and JSON writers (return strings, never touch files).
 //! - [`cli`]: the command-line front end; the only module that reads or writes files.
@@ -35,6 +36,7 @@ pub mod levels;
 pub mod linelist;
 pub mod location;
 pub mod notation;
+pub mod plasma;
 pub mod radial;
 pub mod report;
 pub mod structure;

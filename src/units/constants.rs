@@ -36,6 +36,10 @@ pub const ELEMENTARY_CHARGE_C: f64 = 1.602_176_634e-19;
 /// Electron mass m_e = 9.1093837015e-31 kg (CODATA 2018).
 pub const ELECTRON_MASS_KG: f64 = 9.109_383_701_5e-31;
 
+/// Second radiation constant c₂ = hc/k = 1.438776877 cm·K (CODATA 2018): a level
+/// E cm⁻¹ above another has the Boltzmann factor exp(−c₂E/T) at temperature T (K).
+pub const SECOND_RADIATION_CONSTANT_CM_K: f64 = 1.438_776_877;
+
 #[cfg(test)]
 mod tests {
     use super::*;
