@@ -37,8 +37,8 @@ use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 
 use super::likelihood::{
-    BLEND_RATIO, IntensityReference, intensity_term, ls_multiplet_strength, median,
-    position_term, rules_term, species_term,
+    BLEND_RATIO, IntensityReference, intensity_term, ls_multiplet_strength, median, position_term,
+    rules_term, species_term,
 };
 use super::verdict::{self, Verdict, ln_likelihood_ratio, ln_poisson_tail};
 use super::{
@@ -325,7 +325,8 @@ pub fn assign_with_evidence(
     let match_config = match_config
         .with_chance_floor_fraction(CHANCE_FLOOR_FRACTION)
         .unwrap_or(*match_config);
-    let mut assignments = assign_lines_with_progress(observed, predictions, &match_config, progress);
+    let mut assignments =
+        assign_lines_with_progress(observed, predictions, &match_config, progress);
     let lines = predictions.lines();
     let levels = predictions.levels();
     let species_list: Vec<Species> = predictions.species().iter().map(|s| s.species).collect();
@@ -336,7 +337,8 @@ pub fn assign_with_evidence(
             let (ln_ga, sigma_a) = match (line.transition_probability, line.relative_strength) {
                 (Some(tp), _) if tp.ga_s1() > 0.0 => (
                     tp.ga_s1().ln(),
-                    tp.accuracy.map_or(0.5, |a| a.relative_uncertainty().min(1.0)),
+                    tp.accuracy
+                        .map_or(0.5, |a| a.relative_uncertainty().min(1.0)),
                 ),
                 (None, Some(gf)) if gf > 0.0 => {
                     // gA = gf / (gf per unit gA at σ).
@@ -364,14 +366,27 @@ pub fn assign_with_evidence(
     });
     let span = (high - low).max(1.0);
     let observed_density = observed.len() as f64 / span;
-    let typical_u = median(&mut observed.iter().map(|l| l.uncertainty_cm1).collect::<Vec<_>>());
+    let typical_u = median(
+        &mut observed
+            .iter()
+            .map(|l| l.uncertainty_cm1)
+            .collect::<Vec<_>>(),
+    );
     let k = match_config.tolerance_sigma();
     let ln_null = -span.ln();
     let reference = IntensityReference::from_ln_intensities(
-        intensities.iter().flatten().map(|i| i.ln_intensity).collect(),
+        intensities
+            .iter()
+            .flatten()
+            .map(|i| i.ln_intensity)
+            .collect(),
     );
     let ln_detection = {
-        let mut values: Vec<f64> = intensities.iter().flatten().map(|i| i.ln_intensity).collect();
+        let mut values: Vec<f64> = intensities
+            .iter()
+            .flatten()
+            .map(|i| i.ln_intensity)
+            .collect();
         values.sort_by(f64::total_cmp);
         values.get(values.len() / 20).copied()
     };
@@ -410,7 +425,8 @@ pub fn assign_with_evidence(
         })
         .collect();
     for (p, i) in info.iter().enumerate() {
-        if i.wavenumber_cm1 >= low && i.wavenumber_cm1 <= high
+        if i.wavenumber_cm1 >= low
+            && i.wavenumber_cm1 <= high
             && let Some(state) = states.get_mut(i.species)
         {
             state.all_in_range += 1;
@@ -433,7 +449,9 @@ pub fn assign_with_evidence(
                     }
                     let shared = a.candidates.iter().any(|o| {
                         o.prediction != c.prediction
-                            && lines.get(o.prediction).is_some_and(|l| l.species == line.species)
+                            && lines
+                                .get(o.prediction)
+                                .is_some_and(|l| l.species == line.species)
                     });
                     if !shared {
                         return None;
@@ -464,7 +482,9 @@ pub fn assign_with_evidence(
             .zip(&ls)
             .map(|(a, ls)| {
                 let intensity = intensities.get(a.observed).copied().flatten();
-                score_line(a, ls, intensity, &info, lines, &states, units, penalty, &reference)
+                score_line(
+                    a, ls, intensity, &info, lines, &states, units, penalty, &reference,
+                )
             })
             .collect();
         let primaries = match config.resolution {
@@ -555,7 +575,10 @@ pub fn assign_with_evidence(
         let members = attached.get(i).cloned().unwrap_or_default();
         let mut by_ll: Vec<usize> = (0..a.candidates.len()).collect();
         by_ll.sort_by(|&x, &y| {
-            let (lx, ly) = (s.get(x).map_or(f64::MIN, |v| v.ll), s.get(y).map_or(f64::MIN, |v| v.ll));
+            let (lx, ly) = (
+                s.get(x).map_or(f64::MIN, |v| v.ll),
+                s.get(y).map_or(f64::MIN, |v| v.ll),
+            );
             ly.total_cmp(&lx).then(x.cmp(&y))
         });
         let per_line_rank: Vec<usize> = {
@@ -593,7 +616,10 @@ pub fn assign_with_evidence(
             let species = info.get(c.prediction).map_or(0, |i| i.species);
             c.evidence = Some(CandidateEvidence {
                 log_likelihood: v.ll,
-                predicted_relative_intensity: v.ln_relative.is_finite().then(|| v.ln_relative.exp()),
+                predicted_relative_intensity: v
+                    .ln_relative
+                    .is_finite()
+                    .then(|| v.ln_relative.exp()),
                 observed_to_predicted_intensity: v.residual.is_finite().then(|| v.residual.exp()),
                 species_verdict: verdicts.get(species).copied().unwrap_or_default(),
                 per_line_rank: per_line_rank.get(x).copied().unwrap_or(0),
@@ -609,7 +635,10 @@ pub fn assign_with_evidence(
     let mut intensity_of = vec![0.0f64; states.len()];
     let mut total_intensity = 0.0;
     for a in &assignments {
-        let intensity = observed.get(a.observed).and_then(|o| o.intensity).filter(|i| *i > 0.0);
+        let intensity = observed
+            .get(a.observed)
+            .and_then(|o| o.intensity)
+            .filter(|i| *i > 0.0);
         total_intensity += intensity.unwrap_or(0.0);
         if let Some(first) = a.candidates.first() {
             let s = info.get(first.prediction).map_or(0, |i| i.species);
@@ -846,7 +875,8 @@ fn update_states(
                 .iter()
                 .zip(s)
                 .filter(|(c, x)| {
-                    x.ln_relative.is_finite() && info.get(c.prediction).is_some_and(|p| p.species == sp)
+                    x.ln_relative.is_finite()
+                        && info.get(c.prediction).is_some_and(|p| p.species == sp)
                 })
                 .max_by(|x, y| x.1.ll.total_cmp(&y.1.ll));
             if let Some((_, x)) = best
@@ -867,7 +897,9 @@ fn update_states(
         let (Some(c), Some(x)) = (a.candidates.get(k_primary), s.get(k_primary)) else {
             continue;
         };
-        let Some(p) = info.get(c.prediction) else { continue };
+        let Some(p) = info.get(c.prediction) else {
+            continue;
+        };
         if !p.ln_ga.is_finite() {
             continue;
         }
@@ -888,7 +920,11 @@ fn update_states(
         if e_high - e_low > BLEND_ENERGY_SPREAD_CM1 {
             continue;
         }
-        let ln_weight = log_sum_exp(members.iter().map(|m| m.ln_ga + units.ln_factor(m.wavenumber_cm1)));
+        let ln_weight = log_sum_exp(
+            members
+                .iter()
+                .map(|m| m.ln_ga + units.ln_factor(m.wavenumber_cm1)),
+        );
         let weights: Vec<f64> = members
             .iter()
             .map(|m| (m.ln_ga + units.ln_factor(m.wavenumber_cm1) - ln_weight).exp())
@@ -912,7 +948,9 @@ fn update_states(
         let pts = points.get(n).cloned().unwrap_or_default();
         // Temperature.
         match fit_boltzmann(pts.clone()) {
-            Ok(fit) if fit.temperature_k.is_finite() && (300.0..=1e6).contains(&fit.temperature_k) => {
+            Ok(fit)
+                if fit.temperature_k.is_finite() && (300.0..=1e6).contains(&fit.temperature_k) =>
+            {
                 state.temperature_k = fit.temperature_k;
                 state.note = None;
                 state.fit = Some(fit);

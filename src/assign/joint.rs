@@ -192,8 +192,7 @@ fn min_cost_assignment(cost: &[f64], r: usize, c: usize) -> Vec<Option<usize>> {
         }
     }
     let mut column_of = vec![None; r];
-    for j in 1..=c {
-        let i = row_of[j];
+    for (j, &i) in row_of.iter().enumerate().skip(1) {
         if i > 0
             && let Some(slot) = column_of.get_mut(i - 1)
         {

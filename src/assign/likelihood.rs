@@ -89,7 +89,11 @@ pub fn position_term(deviation_sigma: f64, combined_uncertainty_cm1: f64) -> f64
 /// documentation), width `sigma` in ln I.
 pub fn ln_intensity_density(r: f64, sigma: f64) -> f64 {
     let core = (1.0 - OUTLIER_BELOW - OUTLIER_ABOVE) * ln_normal(r, sigma).exp();
-    let tail_weight = if r < 0.0 { OUTLIER_BELOW } else { OUTLIER_ABOVE };
+    let tail_weight = if r < 0.0 {
+        OUTLIER_BELOW
+    } else {
+        OUTLIER_ABOVE
+    };
     let tail = 2.0 * tail_weight * ln_normal(r, OUTLIER_WIDTH).exp();
     (core + tail).max(f64::MIN_POSITIVE).ln()
 }
@@ -211,12 +215,13 @@ mod tests {
 
     #[test]
     fn intensity_density_is_normalised_and_heavier_below() {
-        // ∫ p(r) dr = 1 (a density; trapezoid rule on [−30, 30]).
+        // ∫ p(r) dr = 1 (a density; Riemann sum on [−30, 30], step 10⁻³, the
+        // jump at r = 0 costing ~10⁻⁵).
         let h = 1e-3;
         let total: f64 = (-30_000..30_000)
             .map(|k| ln_intensity_density(f64::from(k) * h, 0.5).exp() * h)
             .sum();
-        assert!((total - 1.0).abs() < 1e-6, "{total}");
+        assert!((total - 1.0).abs() < 1e-4, "{total}");
         assert!(ln_intensity_density(-4.0, 0.5) > ln_intensity_density(4.0, 0.5));
     }
 

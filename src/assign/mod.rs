@@ -69,15 +69,15 @@ use serde::{Deserialize, Serialize};
 
 use crate::levels::{PredictedLine, Predictions};
 use crate::linelist::ObservedLine;
+pub use evidence::{
+    EvidenceConfig, EvidenceError, EvidenceResult, LineIntensity, Resolution, SpeciesEvidence,
+    TemperatureSource, assign_with_evidence,
+};
 pub use record::{
     ASSIGN_COLUMNS, AssignmentFile, AssignmentReadError, AssignmentRecord, CandidateRecord,
     predicted_in_given_unit, read_assignments, records,
 };
 use search::{CandidateIndex, Cursor, Hit};
-pub use evidence::{
-    EvidenceConfig, EvidenceError, EvidenceResult, LineIntensity, Resolution, SpeciesEvidence,
-    TemperatureSource, assign_with_evidence,
-};
 pub use verdict::Verdict;
 
 /// Settings of the matcher.
@@ -350,8 +350,7 @@ impl LineAssignment {
     /// The flag `blend`: in the position-only ranking, more than one candidate lies
     /// within tolerance; in the intensity-aware one, the line is a declared blend.
     pub fn is_blend(&self) -> bool {
-        self.declared_blend
-            .unwrap_or(self.candidates.len() > 1)
+        self.declared_blend.unwrap_or(self.candidates.len() > 1)
     }
 }
 

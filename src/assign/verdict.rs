@@ -123,7 +123,10 @@ mod tests {
         assert!((r - (5.0 * 15f64.ln() - 7.0)).abs() < 1e-12);
         // None of 20 expected lines seen: ln Λ = −qN = −14, decisively absent.
         assert!((ln_likelihood_ratio(0, 20, 0.3) + 14.0).abs() < 1e-12);
-        assert_eq!(verdict(ln_likelihood_ratio(0, 20, 0.3), false), Verdict::Absent);
+        assert_eq!(
+            verdict(ln_likelihood_ratio(0, 20, 0.3), false),
+            Verdict::Absent
+        );
         assert_eq!(verdict(r, false), Verdict::Present);
         assert_eq!(verdict(0.0, false), Verdict::Undecided);
     }

@@ -12,13 +12,13 @@ use crate::assign::{
     EvidenceConfig, LineIntensity, MatchConfig, MatchProgress, Resolution,
     assign_lines_with_progress, assign_with_evidence,
 };
-use crate::plasma::IntensityUnits;
 use crate::levels::{
     EMBEDDED_TABLES, EmbeddedTable, Predictions, compiled_predictions, embedded_stages,
     embedded_table, predict_from_table,
 };
 use crate::linelist::{GlobalUncertainty, LineList, ReadOptions, read_line_list};
 use crate::notation::Species;
+use crate::plasma::IntensityUnits;
 use crate::report::{
     AssignReport, EvidenceView, InputSummary, TableOptions, write_assign_csv, write_assign_json,
     write_assign_table,
@@ -321,7 +321,10 @@ pub fn run(args: AssignArgs) -> Result<(), CliError> {
 
 /// The settings of the intensity-aware assignment from --temperature,
 /// --intensity-units and --per-line.
-fn evidence_config(args: &AssignArgs, predictions: &Predictions) -> Result<EvidenceConfig, CliError> {
+fn evidence_config(
+    args: &AssignArgs,
+    predictions: &Predictions,
+) -> Result<EvidenceConfig, CliError> {
     let mut config = EvidenceConfig {
         units: match args.intensity_units {
             UnitsArg::Photon => IntensityUnits::Photon,
@@ -381,18 +384,25 @@ fn line_intensities(list: &LineList) -> Result<Vec<Option<LineIntensity>>, CliEr
         .map(|line| {
             let uncertainty = match column.and_then(|c| line.extra.get(c)) {
                 Some(text) if !text.trim().is_empty() => {
-                    let value: f64 = text.trim().parse().ok().filter(|v: &f64| v.is_finite() && *v >= 0.0).ok_or_else(|| {
-                        CliError::Message(format!(
-                            "{}: column '{UNCERTAINTY_INTENSITY}': '{}' is not a number ≥ 0",
-                            crate::location::Location::line(&list.source, line.source_line),
-                            text.trim()
-                        ))
-                    })?;
+                    let value: f64 = text
+                        .trim()
+                        .parse()
+                        .ok()
+                        .filter(|v: &f64| v.is_finite() && *v >= 0.0)
+                        .ok_or_else(|| {
+                            CliError::Message(format!(
+                                "{}: column '{UNCERTAINTY_INTENSITY}': '{}' is not a number ≥ 0",
+                                crate::location::Location::line(&list.source, line.source_line),
+                                text.trim()
+                            ))
+                        })?;
                     Some(value)
                 }
                 _ => None,
             };
-            Ok(line.intensity.and_then(|i| LineIntensity::new(i, uncertainty)))
+            Ok(line
+                .intensity
+                .and_then(|i| LineIntensity::new(i, uncertainty)))
         })
         .collect()
 }

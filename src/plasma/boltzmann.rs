@@ -81,7 +81,9 @@ impl BoltzmannFit {
 #[non_exhaustive]
 pub enum BoltzmannProblem {
     /// Fewer than [`MIN_POINTS`] usable points.
-    #[error("{points} lines with intensities and transition probabilities (at least {MIN_POINTS} needed)")]
+    #[error(
+        "{points} lines with intensities and transition probabilities (at least {MIN_POINTS} needed)"
+    )]
     TooFewPoints {
         /// Usable points.
         points: usize,
@@ -93,7 +95,9 @@ pub enum BoltzmannProblem {
         span_cm1: f64,
     },
     /// The slope is not negative enough to give a temperature known to 50 %.
-    #[error("the plot gives no temperature known to 50 % (slope {slope:.3e} ± {sigma:.1e} per cm⁻¹)")]
+    #[error(
+        "the plot gives no temperature known to 50 % (slope {slope:.3e} ± {sigma:.1e} per cm⁻¹)"
+    )]
     Undetermined {
         /// Fitted slope, per cm⁻¹.
         slope: f64,
@@ -118,16 +122,23 @@ pub const MAX_RELATIVE_SIGMA: f64 = 0.5;
 /// non-finite value or a σ_y not greater than 0 are set aside.
 pub fn fit_boltzmann(mut points: Vec<BoltzmannPoint>) -> Result<BoltzmannFit, BoltzmannProblem> {
     for p in &mut points {
-        p.used = p.y.is_finite() && p.upper_energy_cm1.is_finite() && p.y_sigma > 0.0
+        p.used = p.y.is_finite()
+            && p.upper_energy_cm1.is_finite()
+            && p.y_sigma > 0.0
             && p.y_sigma.is_finite();
     }
     let mut fit = None;
     for _ in 0..4 {
         let line = straight_line(&points)?;
-        let residual = |p: &BoltzmannPoint| (p.y - line.a - line.b * p.upper_energy_cm1) / p.y_sigma;
+        let residual =
+            |p: &BoltzmannPoint| (p.y - line.a - line.b * p.upper_energy_cm1) / p.y_sigma;
         // The scale from the median absolute residual (× 1.4826, the MAD of a
         // normal distribution): an outlier does not widen its own threshold.
-        let mut absolute: Vec<f64> = points.iter().filter(|p| p.used).map(|p| residual(p).abs()).collect();
+        let mut absolute: Vec<f64> = points
+            .iter()
+            .filter(|p| p.used)
+            .map(|p| residual(p).abs())
+            .collect();
         absolute.sort_by(f64::total_cmp);
         let median = absolute.get(absolute.len() / 2).copied().unwrap_or(0.0);
         let threshold = 3.0 * (1.4826 * median).max(1.0);
@@ -259,7 +270,11 @@ mod tests {
             })
             .collect();
         let fit = fit_boltzmann(points).unwrap();
-        assert!((fit.temperature_k - t).abs() < 1e-6 * t, "{}", fit.temperature_k);
+        assert!(
+            (fit.temperature_k - t).abs() < 1e-6 * t,
+            "{}",
+            fit.temperature_k
+        );
         assert!(fit.birge_ratio < 1e-6);
     }
 

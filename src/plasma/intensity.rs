@@ -73,7 +73,14 @@ pub fn relative_intensity(
     temperature_k: f64,
     units: IntensityUnits,
 ) -> f64 {
-    ln_relative_intensity(ga_s1, upper_energy_cm1, wavenumber_cm1, temperature_k, units).exp()
+    ln_relative_intensity(
+        ga_s1,
+        upper_energy_cm1,
+        wavenumber_cm1,
+        temperature_k,
+        units,
+    )
+    .exp()
 }
 
 #[cfg(test)]
@@ -93,7 +100,11 @@ mod tests {
             11_604.518,
             IntensityUnits::Photon,
         );
-        assert!((low / high - std::f64::consts::E).abs() < 1e-5, "{}", low / high);
+        assert!(
+            (low / high - std::f64::consts::E).abs() < 1e-5,
+            "{}",
+            low / high
+        );
     }
 
     #[test]

@@ -204,14 +204,20 @@ impl EvidenceView<'_> {
                 continue;
             }
             let temperature = match s.temperature_sigma_k {
-                Some(sigma) => format!("T_exc = {:.0} ± {:.0} K (Boltzmann plot, {} lines)",
-                    s.temperature_k, sigma,
-                    s.boltzmann.as_ref().map_or(0, |b| b.used_points())),
+                Some(sigma) => format!(
+                    "T_exc = {:.0} ± {:.0} K (Boltzmann plot, {} lines)",
+                    s.temperature_k,
+                    sigma,
+                    s.boltzmann.as_ref().map_or(0, |b| b.used_points())
+                ),
                 None => format!(
                     "T_exc = {:.0} K ({}{})",
                     s.temperature_k,
                     s.temperature_source.name(),
-                    s.temperature_note.as_ref().map(|n| format!(": no plot, {n}")).unwrap_or_default()
+                    s.temperature_note
+                        .as_ref()
+                        .map(|n| format!(": no plot, {n}"))
+                        .unwrap_or_default()
                 ),
             };
             let intensities = if s.with_transition_probabilities {
@@ -341,7 +347,11 @@ impl AssignReport<'_> {
                 e.lines_with_intensity,
                 self.assignments.len(),
                 e.rounds,
-                if e.converged { " to a fixed point" } else { " (no fixed point reached)" },
+                if e.converged {
+                    " to a fixed point"
+                } else {
+                    " (no fixed point reached)"
+                },
                 self.config.density_window_factor()
             )),
         }
