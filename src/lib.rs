@@ -19,7 +19,8 @@
 //! - [`radial`]: Hartree–Fock radial wavefunctions, Slater, spin–orbit and dipole
 //!   integrals, and starting level models from them.
 //! - [`transitions`]: E1 selection rules, line strengths, gf and A values.
-//! - [`assign`]: candidate search, ranking, chance-coincidence probabilities, blends.
+//! - [`plasma`]: predicted line intensities and the excitation temperature (Boltzmann plot).
+//! - [`assign`]: candidate search, ranking by likelihood, chance-coincidence probabilities, blends, species verdicts.
 //! - [`fit`]: least-squares fits of model parameters to observed levels.
 //! - [`plasma`]: plasma temperature and electron density from assigned lines (Boltzmann,
 //!   Saha–Boltzmann, Stark widths, LTE check).

@@ -43,6 +43,7 @@ fn assigned() -> (Vec<u8>, ClassifiedLines) {
         list: &list,
         predictions: &predictions,
         assignments: &assignments,
+        evidence: None,
     });
     let lines = records(&list, &predictions, &assignments)
         .iter()

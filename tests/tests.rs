@@ -4,6 +4,7 @@
 
 mod angular_tables;
 mod assign_cli;
+mod assign_intensity;
 mod assign_reference;
 mod compiled_spectra;
 mod digits_roundtrip;

@@ -9,14 +9,19 @@ use super::CliError;
 use super::input::open_input;
 use super::level_sets::{LevelSets, level_sets};
 use super::output::{write_output, write_output_with};
-use crate::assign::{MatchConfig, MatchProgress, assign_lines_with_progress};
+use crate::assign::{
+    EvidenceConfig, LineIntensity, MatchConfig, MatchProgress, Resolution,
+    assign_lines_with_progress, assign_with_evidence,
+};
 use crate::levels::{
     EMBEDDED_TABLES, ListReach, Predictions, compiled_predictions, compiled_predictions_near,
     embedded_table, predict_from_table,
 };
 use crate::linelist::{GlobalUncertainty, LineList, ReadOptions, read_line_list};
+use crate::notation::Species;
+use crate::plasma::IntensityUnits;
 use crate::report::{
-    AssignReport, InputSummary, TableOptions, write_assign_csv, write_assign_json,
+    AssignReport, EvidenceView, InputSummary, TableOptions, write_assign_csv, write_assign_json,
     write_assign_table,
 };
 use crate::transitions::model_predictions;
@@ -129,6 +134,36 @@ pub struct AssignArgs {
     /// is complete); without it such a run is refused.
     #[arg(long = "overwrite-input")]
     pub overwrite_input: bool,
+    /// Rank by position and selection rules alone, line by line, as without
+    /// intensities (no temperatures, no species verdicts, no joint resolution).
+    #[arg(long = "position-only")]
+    pub position_only: bool,
+
+    /// Rank each line's candidates by log-likelihood on their own, without the
+    /// joint resolution (one transition, one line) over the whole list.
+    #[arg(long = "per-line", conflicts_with = "position_only")]
+    pub per_line: bool,
+
+    /// Starting excitation temperature, K: `"Ar I=11000"` for one species (repeat
+    /// for several), or a number alone for every other species. Each species'
+    /// Boltzmann plot replaces it where the plot is meaningful.
+    /// [default: 8000]
+    #[arg(long = "temperature", value_name = "[SPECTRUM=]KELVIN")]
+    pub temperature: Vec<String>,
+
+    /// What the intensity column measures: photon counts (I ∝ gA e^(−E/kT)) or
+    /// energy (I ∝ gA e^(−E/kT)/λ).
+    #[arg(long = "intensity-units", value_enum, default_value_t = UnitsArg::Photon)]
+    pub intensity_units: UnitsArg,
+}
+
+/// The intensity units, as typed.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum UnitsArg {
+    /// Photon counts.
+    Photon,
+    /// Energy.
+    Energy,
 }
 
 /// The long description of `termsight assign --help`.
@@ -234,7 +269,32 @@ pub fn run(args: AssignArgs) -> Result<(), CliError> {
             );
         }
     };
-    let assignments = assign_lines_with_progress(&list.lines, &predictions, &config, &mut progress);
+    let evidence_config = evidence_config(&args, &predictions)?;
+    let intensities = if args.position_only {
+        Vec::new()
+    } else {
+        line_intensities(&list)?
+    };
+    let (assignments, result) = if args.position_only {
+        (
+            assign_lines_with_progress(&list.lines, &predictions, &config, &mut progress),
+            None,
+        )
+    } else {
+        let result = assign_with_evidence(
+            &list.lines,
+            &intensities,
+            &predictions,
+            &config,
+            &evidence_config,
+            &mut progress,
+        );
+        (Vec::new(), Some(result))
+    };
+    let assignments = match &result {
+        Some(r) => &r.assignments,
+        None => &assignments,
+    };
     if total > PROGRESS_ABOVE {
         let _ = writeln!(
             io::stderr(),
@@ -247,7 +307,14 @@ pub fn run(args: AssignArgs) -> Result<(), CliError> {
         config: &config,
         list: &list,
         predictions: &predictions,
-        assignments: &assignments,
+        assignments,
+        evidence: result.as_ref().map(|r| EvidenceView {
+            config: &evidence_config,
+            species: &r.species,
+            rounds: r.rounds,
+            converged: r.converged,
+            lines_with_intensity: intensities.iter().flatten().count(),
+        }),
     };
     let options = TableOptions {
         all: args.all,
@@ -287,6 +354,94 @@ fn check_paths(args: &AssignArgs) -> Result<(), CliError> {
         })
         .collect();
     check_outputs(&inputs, &outputs, args.overwrite_input)
+}
+
+/// The settings of the intensity-aware assignment from --temperature,
+/// --intensity-units and --per-line.
+fn evidence_config(
+    args: &AssignArgs,
+    predictions: &Predictions,
+) -> Result<EvidenceConfig, CliError> {
+    let mut config = EvidenceConfig {
+        units: match args.intensity_units {
+            UnitsArg::Photon => IntensityUnits::Photon,
+            UnitsArg::Energy => IntensityUnits::Energy,
+        },
+        resolution: if args.per_line {
+            Resolution::PerLine
+        } else {
+            Resolution::Joint
+        },
+        ..EvidenceConfig::default()
+    };
+    for text in &args.temperature {
+        let bad = |why: String| CliError::Message(format!("--temperature '{text}': {why}"));
+        let (species, value) = match text.rsplit_once('=') {
+            Some((species, value)) => (Some(species.trim()), value.trim()),
+            None => (None, text.trim()),
+        };
+        let kelvin: f64 = value
+            .parse()
+            .ok()
+            .filter(|t: &f64| t.is_finite() && *t > 0.0)
+            .ok_or_else(|| bad(format!("'{value}' is not a number of kelvin above 0")))?;
+        match species {
+            None => config.default_temperature_k = kelvin,
+            Some(name) => {
+                let species: Species = name.parse().map_err(|e| bad(format!("{e}")))?;
+                if predictions.summary(species).is_none() {
+                    return Err(bad(format!(
+                        "{species} is not among the spectra matched (add it with --species)"
+                    )));
+                }
+                config.temperatures.retain(|(s, _)| *s != species);
+                config.temperatures.push((species, kelvin));
+            }
+        }
+    }
+    config
+        .validate()
+        .map_err(|e| CliError::Message(format!("--temperature: {e}")))?;
+    Ok(config)
+}
+
+/// Name of the optional column of intensity uncertainties.
+const UNCERTAINTY_INTENSITY: &str = "uncertainty_intensity";
+
+/// The intensity of each line with its uncertainty from the `uncertainty_intensity`
+/// column (a pass-through column of the list, same unit as the intensity), when
+/// there is one.
+fn line_intensities(list: &LineList) -> Result<Vec<Option<LineIntensity>>, CliError> {
+    let column = list
+        .extra_columns
+        .iter()
+        .position(|c| c.trim().eq_ignore_ascii_case(UNCERTAINTY_INTENSITY));
+    list.lines
+        .iter()
+        .map(|line| {
+            let uncertainty = match column.and_then(|c| line.extra.get(c)) {
+                Some(text) if !text.trim().is_empty() => {
+                    let value: f64 = text
+                        .trim()
+                        .parse()
+                        .ok()
+                        .filter(|v: &f64| v.is_finite() && *v >= 0.0)
+                        .ok_or_else(|| {
+                            CliError::Message(format!(
+                                "{}: column '{UNCERTAINTY_INTENSITY}': '{}' is not a number ≥ 0",
+                                crate::location::Location::line(&list.source, line.source_line),
+                                text.trim()
+                            ))
+                        })?;
+                    Some(value)
+                }
+                _ => None,
+            };
+            Ok(line
+                .intensity
+                .and_then(|i| LineIntensity::new(i, uncertainty)))
+        })
+        .collect()
 }
 
 fn match_config(args: &AssignArgs) -> Result<MatchConfig, CliError> {
