@@ -78,6 +78,10 @@ fn assigned_example(dir: &Path) -> PathBuf {
         "Ne I",
         "--species",
         "H I",
+        // Ranked by position alone, every H I line of the tube is a blend of its
+        // fine-structure components (the intensity-aware ranking declares blends only
+        // between components of comparable predicted intensity).
+        "--position-only",
         "--format",
         "csv",
         "-o",
