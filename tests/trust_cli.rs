@@ -771,3 +771,30 @@ fn fit_reads_the_level_table_that_optimize_writes() {
     assert!((fitted("Eav@1s.3s") - (optimized("1s.3s") - 750.0)).abs() < 1e-6);
     assert!((fitted("Eav@1s.4s") - (optimized("1s.4s") - 300.0)).abs() < 1e-6);
 }
+
+#[test]
+fn a_window_wider_than_every_prediction_is_warned_about() {
+    // A level table of three invented levels: predictions at 1000 and 1200 cm⁻¹.
+    // A line at 1100 ± 50 cm⁻¹ with K = 3 spans 950–1250 cm⁻¹: both are candidates
+    // by the uncertainty alone (README, "How a match is made").
+    let dir = tempfile::tempdir().unwrap();
+    let levels = write(
+        dir.path(),
+        "levels.csv",
+        "species,configuration,term,J,energy_cm1,uncertainty_cm1,source\n\
+         He I,1s2,1S,0,0,0,invented\n\
+         He I,1s.2p,1P°,1,1000,0,invented\n\
+         He I,1s.3p,1P°,1,1200,0,invented\n",
+    );
+    let lines = write(
+        dir.path(),
+        "lines.csv",
+        "wavenumber_cm1,uncertainty_cm1\n1100,50\n1100,10\n",
+    );
+    let out = termsight(&["assign", s(&lines), "--levels", s(&levels)]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let err = stderr(&out);
+    assert!(err.contains("lines.csv:2: the uncertainty"), "{err}");
+    assert!(err.contains("spans every predicted line"), "{err}");
+    assert!(!err.contains("lines.csv:3:"), "{err}");
+}

@@ -257,6 +257,7 @@ pub fn run(args: AssignArgs) -> Result<(), CliError> {
         args.model_uncertainty,
         Some(&config.reach_of(&list.lines)),
     )?;
+    warn_wide_windows(&list, &predictions, &config);
 
     let total = list.lines.len();
     let mut progress = |p: MatchProgress| {
@@ -621,6 +622,45 @@ fn read_lines(args: &AssignArgs) -> Result<LineList, CliError> {
         .ok_or_else(|| CliError::Message("give the line list to assign (LINES)".into()))?;
     let (reader, name) = open_input(path)?;
     read_line_list(reader, &name, &options).map_err(read_error)
+}
+
+/// Lines warned about for a window wider than every prediction, at most.
+const WIDE_WINDOWS_SHOWN: usize = 20;
+
+/// Warn, naming the row, about each line whose acceptance window ±K·u already spans
+/// every predicted line: its uncertainty is surely wrong (a unit or a column mixed
+/// up), and every prediction becomes its candidate.
+fn warn_wide_windows(list: &LineList, predictions: &Predictions, config: &MatchConfig) {
+    // The span of every line predicted (those beyond the list's reach included).
+    let Some((low, high)) = predictions.span_cm1() else {
+        return;
+    };
+    if predictions.lines().len() < 2 || high <= low {
+        return;
+    }
+    let k = config.tolerance_sigma();
+    let wide = list.lines.iter().filter(|line| {
+        line.wavenumber_cm1 - k * line.uncertainty_cm1 <= low
+            && line.wavenumber_cm1 + k * line.uncertainty_cm1 >= high
+    });
+    let mut stderr = io::stderr().lock();
+    for (shown, line) in wide.enumerate() {
+        if shown == WIDE_WINDOWS_SHOWN {
+            let _ = writeln!(
+                stderr,
+                "termsight: warning: more such lines in {}",
+                list.source
+            );
+            break;
+        }
+        let _ = writeln!(
+            stderr,
+            "termsight: warning: {}:{}: the uncertainty {:.4e} cm-1 (×{k} = --within) spans \
+             every predicted line ({low:.3}–{high:.3} cm-1): every prediction is a \
+             candidate; check the uncertainty's unit and column",
+            list.source, line.source_line, line.uncertainty_cm1
+        );
+    }
 }
 
 /// The rows left out under --skip-bad, on standard error.
