@@ -10,6 +10,7 @@ mod digits_roundtrip;
 mod fit_cli;
 mod fit_physics;
 mod fit_roundtrip;
+mod fuzz_corpus;
 mod levels_cli;
 mod lines_cli;
 mod optimize_cli;
