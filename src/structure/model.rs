@@ -1061,6 +1061,33 @@ between = ["3s2", "3p2"]
         assert!((zeta.value - 1.1 * 45.0).abs() < 1e-9);
     }
 
+    #[test]
+    fn the_model_of_the_readme_reads_with_every_tie_form() {
+        // The README documents the format with this example; it must stay true.
+        // Each tied value is ratio × the value of the parameter named (arithmetic
+        // of the README's numbers).
+        let readme = include_str!("../../README.md");
+        let start = readme.find("```toml\n").expect("README has a TOML model") + 8;
+        let length = readme[start..].find("```").expect("the TOML block ends");
+        let loaded = parse_model(&readme[start..start + length], "README.md").unwrap();
+        let model = &loaded.model;
+        let value = |name: &str| {
+            model
+                .parameters
+                .iter()
+                .find(|p| model.full_name(&p.id) == name)
+                .unwrap_or_else(|| panic!("{name} not in the model"))
+                .value
+        };
+        assert!((value("zeta(3p)@3p2") - 1.1 * 40.0).abs() < 1e-9);
+        assert!((value("F4(3d)@3d2") - 0.63 * 20000.0).abs() < 1e-9);
+        assert!((value("G1(3s,4p)@3s.4p") - 0.3 * 12000.0).abs() < 1e-9);
+        assert!((value("zeta(4p)@3s.4p") - 0.3 * 40.0).abs() < 1e-9);
+        assert!((value("R2(3s3s,3d3d)@3s2~3d2") - 0.5 * 15000.0).abs() < 1e-9);
+        assert_eq!(model.model_uncertainty_cm1, Some(300.0));
+        assert_eq!(model.dipole.len(), 2);
+    }
+
     fn error(text: &str) -> String {
         parse_model(text, "m.toml").unwrap_err().to_string()
     }
