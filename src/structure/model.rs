@@ -53,8 +53,9 @@
 //!   another parameter) with `ratio` (default 1): a tied parameter equals ratio ×
 //!   the other and needs no `value` (if one is given it must agree).
 //!   A tie names the parameter as `name@scope` (`zeta(3p)@3s.3p`,
-//!   `R1(3s3s,3p3p)@3s2~3p2`), or by its short name alone when that is in the same
-//!   table or unique in the model.
+//!   `R1(3s3s,3p3p)@3s2~3p2`), or by its short name alone, which means another
+//!   parameter: the one of that name in the same table, else the only other one of
+//!   that name in the model.
 //!
 //! Every error names the file, line and key.
 
