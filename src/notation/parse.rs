@@ -50,12 +50,7 @@ const MAX_HALF_INT: u32 = 1000;
 fn half_int(input: &str) -> IResult<&str, HalfInt> {
     let (rest, numerator) = number(input)?;
     let (rest, halves) = opt(tag("/2")).parse(rest)?;
-    let verify = || {
-        nom::Err::Error(nom::error::Error::new(
-            input,
-            nom::error::ErrorKind::Verify,
-        ))
-    };
+    let verify = || nom::Err::Error(nom::error::Error::new(input, nom::error::ErrorKind::Verify));
     match halves {
         Some(_) if numerator % 2 == 1 && numerator <= 2 * MAX_HALF_INT => {
             Ok((rest, HalfInt::from_twice(numerator)))
@@ -745,7 +740,10 @@ mod tests {
             assert!(format!("2[{bad}]°").parse::<Term>().is_err(), "{bad}");
         }
         assert_eq!("1000".parse::<HalfInt>().unwrap(), HalfInt::from_int(1000));
-        assert_eq!("1999/2".parse::<HalfInt>().unwrap(), HalfInt::from_twice(1999));
+        assert_eq!(
+            "1999/2".parse::<HalfInt>().unwrap(),
+            HalfInt::from_twice(1999)
+        );
     }
 
     fn any_parity() -> impl Strategy<Value = Parity> {
