@@ -34,6 +34,8 @@ pub mod angular;
 pub mod assign;
 pub mod cli;
 pub mod fit;
+#[doc(hidden)]
+pub mod fuzzing;
 pub mod levels;
 pub mod linelist;
 pub mod location;

@@ -13,6 +13,7 @@ mod fit_cli;
 mod fit_physics;
 mod fit_roundtrip;
 mod level_search;
+mod fuzz_corpus;
 mod levels_cli;
 mod lines_cli;
 mod optimize_cli;
