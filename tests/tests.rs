@@ -15,6 +15,7 @@ mod lines_cli;
 mod optimize_cli;
 mod optimize_reference;
 mod radial;
+mod radial_rydberg;
 mod structure_physics;
 mod structure_tables;
 mod units;
