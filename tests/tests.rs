@@ -20,6 +20,7 @@ mod optimize_cli;
 mod optimize_reference;
 mod plasma_synthetic;
 mod radial;
+mod radial_rydberg;
 mod structure_physics;
 mod structure_tables;
 mod trust_cli;

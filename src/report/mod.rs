@@ -17,6 +17,8 @@
 //! model; [`lines_table`], [`lines_csv`] and [`lines_json`] write it.
 //! For `termsight fit`, a [`FitReport`] wraps a [`crate::fit::FitResult`] with its
 //! sources; [`fit_table`] and [`fit_json`] write it.
+//! For `termsight radial`, a [`RadialReport`] holds the orbitals and integrals of
+//! the configurations; [`radial_table`] and [`radial_json`] write it.
 
 mod assign_csv;
 mod assign_json;
@@ -29,6 +31,7 @@ mod fit;
 mod level_search;
 mod model_lines;
 mod optimize;
+mod radial;
 
 use serde::Serialize;
 
@@ -52,6 +55,10 @@ pub use model_lines::{
 pub use optimize::{
     OPTIMIZED_LEVEL_EXTRA_COLUMNS, OPTIMIZED_LINE_COLUMNS, OptimizeContext, blend_loss_text,
     optimize_description, optimize_json, optimize_table, optimized_levels_csv, optimized_lines_csv,
+};
+pub use radial::{
+    ConfigurationReport, NONRELATIVISTIC_LIMIT_Z, OrbitalReport, RadialReport, radial_json,
+    radial_table, relativistic_note,
 };
 
 /// What the outputs say about the measured line list.
