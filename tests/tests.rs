@@ -7,6 +7,7 @@ mod assign_cli;
 mod assign_reference;
 mod compiled_spectra;
 mod digits_roundtrip;
+mod figures;
 mod fit_cli;
 mod fit_physics;
 mod fit_roundtrip;

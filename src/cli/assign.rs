@@ -7,7 +7,7 @@ use clap::ValueEnum;
 
 use super::CliError;
 use super::input::{open_input, read_levels_file};
-use super::output::{write_output, write_output_with};
+use super::output::{write_atomically, write_output, write_output_with};
 use crate::assign::{MatchConfig, MatchProgress, assign_lines_with_progress};
 use crate::levels::{
     EMBEDDED_TABLES, EmbeddedTable, Predictions, compiled_predictions, embedded_stages,
@@ -15,6 +15,10 @@ use crate::levels::{
 };
 use crate::linelist::{GlobalUncertainty, LineList, ReadOptions, read_line_list};
 use crate::notation::Species;
+use crate::report::figures::{
+    SpectrumAxis, StickWindow, boltzmann_from_records, boltzmann_svg, stick_spectrum_from,
+    stick_spectrum_svg,
+};
 use crate::report::{
     AssignReport, InputSummary, TableOptions, write_assign_csv, write_assign_json,
     write_assign_table,
@@ -124,6 +128,43 @@ pub struct AssignArgs {
     /// instead of stopping at the first one.
     #[arg(long = "skip-bad")]
     pub skip_bad: bool,
+
+    /// Also draw the stick spectrum (observed lines above, predicted below, joined by
+    /// their assignments) as SVG to FILE.
+    #[arg(long = "plot", value_name = "FILE.svg")]
+    pub plot: Option<PathBuf>,
+
+    /// The figure's horizontal axis.
+    #[arg(long = "plot-axis", value_enum, default_value_t = PlotAxis::Wavelength)]
+    pub plot_axis: PlotAxis,
+
+    /// The figure's range starts here, in the axis' unit (nm or cm⁻¹). [default: the
+    /// observed range]
+    #[arg(long = "plot-from", value_name = "X")]
+    pub plot_from: Option<f64>,
+
+    /// The figure's range ends here, in the axis' unit.
+    #[arg(long = "plot-to", value_name = "X")]
+    pub plot_to: Option<f64>,
+
+    /// Also draw the Boltzmann plot, ln(Iλ/gA) against the upper level's energy, as
+    /// SVG to FILE, from the rank-1 candidates with an intensity and a published gA
+    /// (blends left out).
+    #[arg(long = "boltzmann-plot", value_name = "FILE.svg")]
+    pub boltzmann_plot: Option<PathBuf>,
+
+    /// The spectrum of the Boltzmann plot. [default: the one with most usable lines]
+    #[arg(long = "boltzmann-species", value_name = "SPECTRUM")]
+    pub boltzmann_species: Option<String>,
+}
+
+/// The horizontal axis of the stick spectrum.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum PlotAxis {
+    /// Wavelength, nm: in air at and above 200 nm, in vacuum below.
+    Wavelength,
+    /// Vacuum wavenumber, cm⁻¹.
+    Wavenumber,
 }
 
 /// The long description of `termsight assign --help`.
@@ -249,7 +290,45 @@ pub fn run(args: AssignArgs) -> Result<(), CliError> {
         Format::Table => write_assign_table(&report, &options, out),
         Format::Csv => write_assign_csv(&report, out),
         Format::Json => write_assign_json(&report, out),
-    })
+    })?;
+    write_figures(&args, &report)
+}
+
+/// The figures asked for with --plot and --boltzmann-plot.
+fn write_figures(args: &AssignArgs, report: &AssignReport<'_>) -> Result<(), CliError> {
+    if let Some(path) = &args.plot {
+        let window = StickWindow {
+            axis: match args.plot_axis {
+                PlotAxis::Wavelength => SpectrumAxis::Wavelength {
+                    air_formula: args.air_formula.into(),
+                },
+                PlotAxis::Wavenumber => SpectrumAxis::Wavenumber,
+            },
+            from: args.plot_from,
+            to: args.plot_to,
+            ..StickWindow::default()
+        };
+        let svg = stick_spectrum_svg(&stick_spectrum_from(report), &window)
+            .map_err(|e| CliError::Message(format!("--plot: {e}")))?;
+        write_atomically(path, svg.as_bytes())?;
+    }
+    if let Some(path) = &args.boltzmann_plot {
+        let species = args
+            .boltzmann_species
+            .as_deref()
+            .map(|s| {
+                s.parse::<Species>()
+                    .map_err(|e| CliError::Message(format!("--boltzmann-species: {e}")))
+            })
+            .transpose()?;
+        let records = crate::assign::records(report.list, report.predictions, report.assignments);
+        let plot = boltzmann_from_records(&report.input.source, &records, species)
+            .map_err(|e| CliError::Message(format!("--boltzmann-plot: {e}")))?;
+        let svg = boltzmann_svg(&plot)
+            .map_err(|e| CliError::Message(format!("--boltzmann-plot: {e}")))?;
+        write_atomically(path, svg.as_bytes())?;
+    }
+    Ok(())
 }
 
 fn match_config(args: &AssignArgs) -> Result<MatchConfig, CliError> {

@@ -25,6 +25,7 @@ mod assign_table;
 mod compiled;
 mod csv_document;
 pub mod digits;
+pub mod figures;
 mod fit;
 mod model_lines;
 mod optimize;
