@@ -331,7 +331,7 @@ fn write_figures(args: &AssignArgs, report: &AssignReport<'_>) -> Result<(), Cli
     Ok(())
 }
 
-fn match_config(args: &AssignArgs) -> Result<MatchConfig, CliError> {
+pub(crate) fn match_config(args: &AssignArgs) -> Result<MatchConfig, CliError> {
     fn flag(name: &'static str) -> impl Fn(crate::assign::MatchConfigError) -> CliError {
         move |e| CliError::Message(format!("--{name}: {e}"))
     }
@@ -348,7 +348,7 @@ fn match_config(args: &AssignArgs) -> Result<MatchConfig, CliError> {
 /// when neither --species, --levels nor --model is given), from every level table
 /// given with --levels (a table of a compiled species replaces the compiled one, and
 /// the outputs say so), and from every model.
-fn predictions(
+pub(crate) fn predictions(
     level_files: &[PathBuf],
     species_names: &[String],
     models: &[PathBuf],
@@ -532,7 +532,7 @@ fn read_lines(args: &AssignArgs) -> Result<LineList, CliError> {
     read_line_list(reader, &name, &options).map_err(read_error)
 }
 
-fn report_skipped(list: &LineList) {
+pub(crate) fn report_skipped(list: &LineList) {
     let mut stderr = io::stderr().lock();
     for skipped in &list.skipped {
         let _ = writeln!(

@@ -7,7 +7,8 @@ use std::path::{Path, PathBuf};
 use super::CliError;
 use super::assign::AirFormulaArg;
 use super::input::open_file;
-use super::output::write_output;
+use super::output::{write_atomically, write_output};
+use crate::report::figures::{model_spectrum_from, model_spectrum_svg};
 use crate::report::{LineSelection, LinesReport, lines_csv, lines_json, lines_table};
 use crate::structure::DipoleIntegral;
 use crate::structure::model::{LoadedModel, read_model};
@@ -53,6 +54,10 @@ pub struct LinesArgs {
     /// Write to FILE instead of standard output (it appears complete or not at all).
     #[arg(short = 'o', long, value_name = "FILE")]
     pub output: Option<PathBuf>,
+    /// Also draw the selected lines as sticks of log gf (intercombination lines
+    /// marked) as SVG to FILE.
+    #[arg(long = "plot", value_name = "FILE.svg")]
+    pub plot: Option<PathBuf>,
 }
 
 const AFTER_HELP: &str = "\
@@ -178,5 +183,11 @@ pub fn run(args: LinesArgs) -> Result<(), CliError> {
         LinesFormat::Csv => lines_csv(&report),
         LinesFormat::Json => lines_json(&report).into_bytes(),
     };
-    write_output(args.output.as_deref(), &bytes)
+    write_output(args.output.as_deref(), &bytes)?;
+    if let Some(path) = &args.plot {
+        let svg = model_spectrum_svg(&model_spectrum_from(&report))
+            .map_err(|e| CliError::Message(format!("--plot: {e}")))?;
+        write_atomically(path, svg.as_bytes())?;
+    }
+    Ok(())
 }

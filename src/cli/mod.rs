@@ -14,6 +14,7 @@ pub mod lines;
 pub mod optimize;
 pub mod output;
 pub mod radial;
+pub mod report;
 
 use std::io::{self, Write};
 use std::process::ExitCode;
@@ -47,6 +48,7 @@ pub fn run(cli: Cli) -> Result<(), CliError> {
         Command::Lines(args) => lines::run(args),
         Command::Optimize(args) => optimize::run(args),
         Command::Radial(args) => radial::run(args),
+        Command::Report(args) => report::run(args),
     }
 }
 

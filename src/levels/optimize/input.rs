@@ -499,3 +499,41 @@ mod tests {
         assert!(read.lines[0].accepted());
     }
 }
+
+/// The classified lines of an assignment held in memory (the rows of the assign CSV,
+/// as [`crate::assign::records`] gives them): every row with a candidate, as
+/// [`read_classified_lines`] would read the CSV back without an `accept` column.
+pub fn classified_from_records(
+    source: &str,
+    records: &[crate::assign::AssignmentRecord],
+) -> ClassifiedLines {
+    let mut out = ClassifiedLines {
+        source: source.to_string(),
+        lines: Vec::new(),
+        unassigned_rows: 0,
+        has_accept_column: false,
+    };
+    for (row, record) in records.iter().enumerate() {
+        let Some(candidate) = &record.candidate else {
+            out.unassigned_rows += 1;
+            continue;
+        };
+        out.lines.push(ClassifiedLine {
+            line: record.line,
+            // The header line comes first in the CSV.
+            source_line: row + 2,
+            species: candidate.species,
+            lower: candidate.lower.clone(),
+            upper: candidate.upper.clone(),
+            wavenumber_cm1: record.observed_wavenumber_cm1,
+            uncertainty_cm1: record.observed_uncertainty_cm1,
+            rank: record.rank,
+            blend: record.flags.contains(&crate::assign::Flag::Blend),
+            accept: None,
+            lower_energy_cm1: Some(candidate.lower_energy_cm1),
+            upper_energy_cm1: Some(candidate.upper_energy_cm1),
+            intensity: record.observed_intensity,
+        });
+    }
+    out
+}

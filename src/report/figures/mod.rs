@@ -26,6 +26,7 @@ mod ritz_residuals;
 mod scatter;
 mod stick_spectrum;
 mod style;
+pub use style::escape;
 mod term_diagram;
 
 pub use boltzmann::boltzmann_svg;
