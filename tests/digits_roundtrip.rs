@@ -62,6 +62,7 @@ fn assigned() -> (Vec<u8>, ClassifiedLines) {
                 accept: None,
                 lower_energy_cm1: Some(candidate.lower_energy_cm1),
                 upper_energy_cm1: Some(candidate.upper_energy_cm1),
+                intensity: row.observed_intensity,
             })
         })
         .collect();

@@ -8,6 +8,7 @@ mod assign_intensity;
 mod assign_reference;
 mod compiled_spectra;
 mod digits_roundtrip;
+mod figures;
 mod find_levels_cli;
 mod fit_cli;
 mod fit_physics;

@@ -38,6 +38,9 @@ pub enum Command {
     /// Orbitals and radial integrals (E_av, F^k, G^k, R^k, ζ, ⟨r⟩) of configurations,
     /// from a self-consistent field; optionally a starting level model of them.
     Radial(super::radial::RadialArgs),
+    /// Assign, optimise (and fit) one line list and write it all, tables and
+    /// figures, as one self-contained HTML page.
+    Report(super::report::ReportArgs),
 }
 
 #[cfg(test)]

@@ -8,7 +8,7 @@ use clap::ValueEnum;
 use super::CliError;
 use super::input::open_input;
 use super::level_sets::{LevelSets, level_sets};
-use super::output::{write_output, write_output_with};
+use super::output::{write_atomically, write_output, write_output_with};
 use crate::assign::{
     EvidenceConfig, LineIntensity, MatchConfig, MatchProgress, Resolution,
     assign_lines_with_progress, assign_with_evidence,
@@ -20,6 +20,10 @@ use crate::levels::{
 use crate::linelist::{GlobalUncertainty, LineList, ReadOptions, read_line_list};
 use crate::notation::Species;
 use crate::plasma::IntensityUnits;
+use crate::report::figures::{
+    SpectrumAxis, StickWindow, boltzmann_from_records, boltzmann_svg, stick_spectrum_from,
+    stick_spectrum_svg,
+};
 use crate::report::{
     AssignReport, EvidenceView, InputSummary, TableOptions, write_assign_csv, write_assign_json,
     write_assign_table,
@@ -155,6 +159,43 @@ pub struct AssignArgs {
     /// energy (I ∝ gA e^(−E/kT)/λ).
     #[arg(long = "intensity-units", value_enum, default_value_t = UnitsArg::Photon)]
     pub intensity_units: UnitsArg,
+
+    /// Also draw the stick spectrum (observed lines above, predicted below, joined by
+    /// their assignments) as SVG to FILE.
+    #[arg(long = "plot", value_name = "FILE.svg")]
+    pub plot: Option<PathBuf>,
+
+    /// The figure's horizontal axis.
+    #[arg(long = "plot-axis", value_enum, default_value_t = PlotAxis::Wavelength)]
+    pub plot_axis: PlotAxis,
+
+    /// The figure's range starts here, in the axis' unit (nm or cm⁻¹). [default: the
+    /// observed range]
+    #[arg(long = "plot-from", value_name = "X")]
+    pub plot_from: Option<f64>,
+
+    /// The figure's range ends here, in the axis' unit.
+    #[arg(long = "plot-to", value_name = "X")]
+    pub plot_to: Option<f64>,
+
+    /// Also draw the Boltzmann plot, ln(Iλ/gA) against the upper level's energy, as
+    /// SVG to FILE, from the rank-1 candidates with an intensity and a published gA
+    /// (blends left out).
+    #[arg(long = "boltzmann-plot", value_name = "FILE.svg")]
+    pub boltzmann_plot: Option<PathBuf>,
+
+    /// The spectrum of the Boltzmann plot. [default: the one with most usable lines]
+    #[arg(long = "boltzmann-species", value_name = "SPECTRUM")]
+    pub boltzmann_species: Option<String>,
+}
+
+/// The horizontal axis of the stick spectrum.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum PlotAxis {
+    /// Wavelength, nm: in air at and above 200 nm, in vacuum below.
+    Wavelength,
+    /// Vacuum wavenumber, cm⁻¹.
+    Wavenumber,
 }
 
 /// The intensity units, as typed.
@@ -325,7 +366,8 @@ pub fn run(args: AssignArgs) -> Result<(), CliError> {
         Format::Table => write_assign_table(&report, &options, out),
         Format::Csv => write_assign_csv(&report, out),
         Format::Json => write_assign_json(&report, out),
-    })
+    })?;
+    write_figures(&args, &report)
 }
 
 /// Refuse an output onto an input (see [`super::paths`]).
@@ -346,14 +388,14 @@ fn check_paths(args: &AssignArgs) -> Result<(), CliError> {
         option: "--model",
         path,
     }));
-    let outputs: Vec<NamedPath<'_>> = args
-        .output
-        .iter()
-        .map(|path| NamedPath {
-            option: "--output",
-            path,
-        })
-        .collect();
+    let outputs: Vec<NamedPath<'_>> = [
+        ("--output", &args.output),
+        ("--plot", &args.plot),
+        ("--boltzmann-plot", &args.boltzmann_plot),
+    ]
+    .into_iter()
+    .filter_map(|(option, path)| path.as_ref().map(|path| NamedPath { option, path }))
+    .collect();
     check_outputs(&inputs, &outputs, args.overwrite_input)
 }
 
@@ -445,7 +487,44 @@ fn line_intensities(list: &LineList) -> Result<Vec<Option<LineIntensity>>, CliEr
         .collect()
 }
 
-fn match_config(args: &AssignArgs) -> Result<MatchConfig, CliError> {
+/// The figures asked for with --plot and --boltzmann-plot.
+fn write_figures(args: &AssignArgs, report: &AssignReport<'_>) -> Result<(), CliError> {
+    if let Some(path) = &args.plot {
+        let window = StickWindow {
+            axis: match args.plot_axis {
+                PlotAxis::Wavelength => SpectrumAxis::Wavelength {
+                    air_formula: args.air_formula.into(),
+                },
+                PlotAxis::Wavenumber => SpectrumAxis::Wavenumber,
+            },
+            from: args.plot_from,
+            to: args.plot_to,
+            ..StickWindow::default()
+        };
+        let svg = stick_spectrum_svg(&stick_spectrum_from(report), &window)
+            .map_err(|e| CliError::Message(format!("--plot: {e}")))?;
+        write_atomically(path, svg.as_bytes())?;
+    }
+    if let Some(path) = &args.boltzmann_plot {
+        let species = args
+            .boltzmann_species
+            .as_deref()
+            .map(|s| {
+                s.parse::<Species>()
+                    .map_err(|e| CliError::Message(format!("--boltzmann-species: {e}")))
+            })
+            .transpose()?;
+        let records = crate::assign::records(report.list, report.predictions, report.assignments);
+        let plot = boltzmann_from_records(&report.input.source, &records, species)
+            .map_err(|e| CliError::Message(format!("--boltzmann-plot: {e}")))?;
+        let svg = boltzmann_svg(&plot)
+            .map_err(|e| CliError::Message(format!("--boltzmann-plot: {e}")))?;
+        write_atomically(path, svg.as_bytes())?;
+    }
+    Ok(())
+}
+
+pub(crate) fn match_config(args: &AssignArgs) -> Result<MatchConfig, CliError> {
     fn flag(name: &'static str) -> impl Fn(crate::assign::MatchConfigError) -> CliError {
         move |e| CliError::Message(format!("--{name}: {e}"))
     }
@@ -463,7 +542,7 @@ fn match_config(args: &AssignArgs) -> Result<MatchConfig, CliError> {
 /// given with --levels (a table of a compiled species replaces the compiled one, and
 /// the outputs say so), and from every model. With `reach`, the compiled spectra
 /// keep only the lines its observed lines can reach (the same results, sooner).
-fn predictions(
+pub(crate) fn predictions(
     level_files: &[PathBuf],
     species_names: &[String],
     models: &[PathBuf],

@@ -13,8 +13,9 @@ use super::progress::ModelProgress;
 use crate::fit::{Convergence, FitOptions, FitProgress, Weighting, fit_levels, simple_picture};
 use crate::levels::{EMBEDDED_TABLES, LevelTable, embedded_table};
 use crate::notation::Species;
-use crate::report::{FitReport, fit_json, fit_table};
-use crate::structure::model::{LoadedModel, read_model_with_progress, write_model};
+use crate::report::figures::{fit_residuals_from, fit_residuals_svg};
+use crate::report::{FitReport, fit_json, fit_table, fitted_model_toml};
+use crate::structure::model::{LoadedModel, read_model_with_progress};
 
 /// Long help of `termsight fit`.
 pub const LONG_ABOUT: &str = "\
@@ -113,6 +114,9 @@ pub struct FitArgs {
     /// is complete); without it such a run is refused.
     #[arg(long = "overwrite-input")]
     pub overwrite_input: bool,
+    /// Also draw E_exp − E_calc of every fitted level against its energy as SVG to FILE.
+    #[arg(long = "plot", value_name = "FILE.svg")]
+    pub plot: Option<PathBuf>,
 }
 
 /// Progress lines start once a fit has run this long.
@@ -197,19 +201,13 @@ pub fn run(args: FitArgs) -> Result<(), CliError> {
     };
 
     if let Some(path) = &args.model_out {
-        let mut toml = format!(
-            "# Fitted by termsight fit to {} ({} levels, {} free parameters, {} degrees of \
-             freedom{}).\n# Uncertainties are standard errors of the fit.\n",
-            table.source,
-            result.levels.len(),
-            result.free_parameters,
-            result.degrees_of_freedom,
-            result
-                .sigma_cm1
-                .map_or_else(String::new, |s| format!(", σ = {s:.6} cm⁻¹"))
-        );
-        toml.push_str(&write_model(&fitted));
-        write_atomically(path, toml.as_bytes())?;
+        write_atomically(path, fitted_model_toml(&report).as_bytes())?;
+    }
+    if let Some(path) = &args.plot {
+        let source = format!("{model_path} with {}", table.source);
+        let svg = fit_residuals_svg(&fit_residuals_from(&source, &result))
+            .map_err(|e| CliError::Message(format!("--plot: {e}")))?;
+        write_atomically(path, svg.as_bytes())?;
     }
     // Warnings also reach the terminal when the report does not.
     if args.format != FitFormat::Table || args.output.is_some() {

@@ -7,9 +7,10 @@ use std::path::{Path, PathBuf};
 use super::CliError;
 use super::assign::AirFormulaArg;
 use super::input::open_file;
-use super::output::write_output;
+use super::output::{write_atomically, write_output};
 use super::paths::{NamedPath, check_outputs};
 use super::progress::ModelProgress;
+use crate::report::figures::{model_spectrum_from, model_spectrum_svg};
 use crate::report::{LineSelection, LinesReport, lines_csv, lines_json, lines_table};
 use crate::structure::DipoleIntegral;
 use crate::structure::model::{LoadedModel, read_model_with_progress};
@@ -60,6 +61,10 @@ pub struct LinesArgs {
     /// is complete); without it such a run is refused.
     #[arg(long = "overwrite-input")]
     pub overwrite_input: bool,
+    /// Also draw the selected lines as sticks of log gf (intercombination lines
+    /// marked) as SVG to FILE.
+    #[arg(long = "plot", value_name = "FILE.svg")]
+    pub plot: Option<PathBuf>,
 }
 
 const AFTER_HELP: &str = "\
@@ -204,5 +209,11 @@ pub fn run(args: LinesArgs) -> Result<(), CliError> {
         LinesFormat::Csv => lines_csv(&report),
         LinesFormat::Json => lines_json(&report).into_bytes(),
     };
-    write_output(args.output.as_deref(), &bytes)
+    write_output(args.output.as_deref(), &bytes)?;
+    if let Some(path) = &args.plot {
+        let svg = model_spectrum_svg(&model_spectrum_from(&report))
+            .map_err(|e| CliError::Message(format!("--plot: {e}")))?;
+        write_atomically(path, svg.as_bytes())?;
+    }
+    Ok(())
 }

@@ -18,6 +18,7 @@ pub mod output;
 pub mod paths;
 mod progress;
 pub mod radial;
+pub mod report;
 
 use std::io::{self, Write};
 use std::process::ExitCode;
@@ -52,6 +53,7 @@ pub fn run(cli: Cli) -> Result<(), CliError> {
         Command::Lines(args) => lines::run(args),
         Command::Optimize(args) => optimize::run(args),
         Command::Radial(args) => radial::run(args),
+        Command::Report(args) => report::run(args),
     }
 }
 

@@ -15,6 +15,8 @@
 //!
 //! For `termsight lines`, a [`LinesReport`] holds the selected lines of a level
 //! model; [`lines_table`], [`lines_csv`] and [`lines_json`] write it.
+//! For `termsight levels`, [`level_rows`] turns computed levels into rows that
+//! [`levels_table`], [`levels_csv`] and [`levels_json`] write.
 //! For `termsight fit`, a [`FitReport`] wraps a [`crate::fit::FitResult`] with its
 //! sources; [`fit_table`] and [`fit_json`] write it.
 //! For `termsight radial`, a [`RadialReport`] holds the orbitals and integrals of
@@ -27,8 +29,11 @@ mod assign_table;
 mod compiled;
 mod csv_document;
 pub mod digits;
+pub mod figures;
 mod fit;
+mod html;
 mod level_search;
+mod levels;
 mod model_lines;
 mod optimize;
 mod radial;
@@ -44,10 +49,12 @@ pub use assign_csv::{assign_csv, write_assign_csv};
 pub use assign_json::{assign_json, write_assign_json};
 pub use assign_table::{TableOptions, assign_table, write_assign_table};
 pub use compiled::{CompiledSpectrum, compiled_spectra_table};
-pub use fit::{FitReport, fit_json, fit_table};
+pub use fit::{FitReport, fit_json, fit_table, fitted_model_toml};
+pub use html::{AnalysisPage, MAX_TABLE_ROWS, PageFigure, analysis_html};
 pub use level_search::{
     LevelSearchReport, candidate_term, level_search_csv, level_search_json, level_search_table,
 };
+pub use levels::{ComponentRow, LevelRow, level_rows, levels_csv, levels_json, levels_table};
 pub use model_lines::{
     DipoleValue, LINE_COLUMNS, LineRow, LineSelection, LinesReport, lines_csv, lines_json,
     lines_table,

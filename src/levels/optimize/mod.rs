@@ -33,7 +33,10 @@
 pub mod input;
 pub mod spectrum;
 
-pub use input::{ClassifiedLine, ClassifiedLines, ClassifiedReadError, read_classified_lines};
+pub use input::{
+    ClassifiedLine, ClassifiedLines, ClassifiedReadError, classified_from_records,
+    read_classified_lines,
+};
 pub use spectrum::{
     BlendLoss, BlendPolicy, LevelResult, LineResult, OptimizationReport, OptimizeOptions,
     Selection, SpeciesResult, SpectrumError, SystemResult, optimize_classified,
