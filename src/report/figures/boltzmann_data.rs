@@ -14,9 +14,9 @@
 use crate::assign::{AssignmentRecord, Flag};
 use crate::notation::Species;
 
-/// The second radiation constant c₂ = hc/k, cm·K (CODATA 2018: exact, from the exact
-/// h, c and k of the SI since 2019).
-pub const SECOND_RADIATION_CONSTANT_CM_K: f64 = 1.438_776_877;
+/// The second radiation constant c₂ = hc/k, cm·K: the project's one value
+/// ([`crate::units::constants::SECOND_RADIATION_CM_K`], CODATA 2018).
+pub const SECOND_RADIATION_CONSTANT_CM_K: f64 = crate::units::constants::SECOND_RADIATION_CM_K;
 
 /// One line of the Boltzmann plot.
 #[derive(Debug, Clone, PartialEq)]
