@@ -19,11 +19,13 @@
 //! - [`radial`]: Hartree–Fock radial wavefunctions, Slater, spin–orbit and dipole
 //!   integrals, and starting level models from them.
 //! - [`transitions`]: E1 selection rules, line strengths, gf and A values.
-//! - [`assign`]: candidate search, ranking, chance-coincidence probabilities, blends.
+//! - [`plasma`]: predicted line intensities, the excitation temperature (Boltzmann
+//!   plot), temperature and electron density across stages (Saha–Boltzmann), Stark
+//!   widths and the LTE check.
+//! - [`assign`]: candidate search, ranking by likelihood, chance-coincidence probabilities, blends, species verdicts.
 //! - [`fit`]: least-squares fits of model parameters to observed levels.
-//! - [`plasma`]: plasma temperature and electron density from assigned lines (Boltzmann,
-//!   Saha–Boltzmann, Stark widths, LTE check).
-//! - [`report`]: terminal tables, CSV and JSON writers (return strings, never touch files).
+//! - [`report`]: terminal tables, CSV, JSON, SVG figures and the HTML page (return
+//!   strings or write into any `io::Write`, never open files).
 //! - [`cli`]: the command-line front end; the only module that reads or writes files.
 //!
 //! Energies are in cm⁻¹ throughout unless a name says otherwise (`_hartree`, `_ev`).
@@ -33,6 +35,8 @@ pub mod angular;
 pub mod assign;
 pub mod cli;
 pub mod fit;
+#[doc(hidden)]
+pub mod fuzzing;
 pub mod levels;
 pub mod linelist;
 pub mod location;

@@ -470,3 +470,32 @@ fn an_overflowing_model_uncertainty_is_refused() {
         text(&out.stderr)
     );
 }
+
+#[test]
+fn the_intensity_uncertainty_column_is_read_and_checked() {
+    // Regression: a header `uncertainty_intensity` was taken for a position
+    // uncertainty of unknown unit, so the documented column could not be used.
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("lines.csv");
+    std::fs::write(
+        &path,
+        "wavelength_nm,uncertainty_nm,intensity,uncertainty_intensity\n\
+         587.5637,0.003,1010,50\n667.8151,0.003,300,30\n",
+    )
+    .unwrap();
+    let out = termsight(&["assign", path.to_str().unwrap(), "--species", "He I"]);
+    assert!(out.status.success(), "{}", text(&out.stderr));
+    std::fs::write(
+        &path,
+        "wavelength_nm,uncertainty_nm,intensity,uncertainty_intensity\n\
+         587.5637,0.003,1010,50\n667.8151,0.003,300,x\n",
+    )
+    .unwrap();
+    let out = termsight(&["assign", path.to_str().unwrap(), "--species", "He I"]);
+    assert!(!out.status.success());
+    assert!(
+        text(&out.stderr).contains("lines.csv:3: column 'uncertainty_intensity'"),
+        "{}",
+        text(&out.stderr)
+    );
+}

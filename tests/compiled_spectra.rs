@@ -13,6 +13,7 @@ use std::collections::HashMap;
 use termsight::assign::{MatchConfig, assign_lines, records};
 use termsight::levels::{
     EMBEDDED_TABLES, EmbeddedTable, Level, LevelLabel, Listing, Predictions, compiled_predictions,
+    compiled_predictions_near,
 };
 use termsight::linelist::{ReadOptions, read_line_list};
 use termsight::notation::Species;
@@ -430,4 +431,47 @@ fn published_argon_ion_nitrogen_and_oxygen_lines_are_assigned_at_rank_one() {
         println!("  {miss}");
     }
     assert!(share >= 0.95, "{right} of {}", expected.len());
+}
+
+#[test]
+fn predicting_only_what_the_list_reaches_changes_no_result() {
+    // `assign` predicts the compiled spectra only within reach of the observed lines
+    // (the candidate and density windows). The claim is exactness: every candidate,
+    // deviation and chance probability is the same as with every line predicted.
+    // Checked on seeded random lists (short and long, narrow and broad
+    // uncertainties, vacuum UV to infrared) against all 29 compiled spectra; the
+    // reference is the full prediction, not the code under test.
+    use rand::{Rng, SeedableRng};
+    let all: Vec<&EmbeddedTable> = EMBEDDED_TABLES.iter().collect();
+    let full: Predictions = compiled_predictions(&all).unwrap();
+    let mut rng = rand::rngs::StdRng::seed_from_u64(20261203);
+    for (lines, relative_u) in [(5, 1e-6), (50, 5e-6), (200, 2e-5), (20, 1e-3)] {
+        let mut text = String::from("wavenumber_cm1,uncertainty_cm1\n");
+        for _ in 0..lines {
+            let sigma: f64 = rng.random_range(4_000.0..100_000.0);
+            text.push_str(&format!("{sigma:.4},{:.6}\n", sigma * relative_u));
+        }
+        let list = read_line_list(text.as_bytes(), "random.csv", &ReadOptions::default()).unwrap();
+        let config = MatchConfig::default();
+        let near = compiled_predictions_near(&all, &config.reach_of(&list.lines), 0.0).unwrap();
+        assert!(near.lines().len() <= full.lines().len());
+        if lines <= 5 {
+            // A short list reaches a small part of 100 nm – 2.5 µm.
+            assert!(near.lines().len() < full.lines().len() / 2, "{lines} lines");
+        }
+        assert_eq!(
+            near.species(),
+            full.species(),
+            "the summaries count every line"
+        );
+        assert_eq!(near.span_cm1(), full.span_cm1());
+        let from_full = records(&list, &full, &assign_lines(&list.lines, &full, &config));
+        let from_near = records(&list, &near, &assign_lines(&list.lines, &near, &config));
+        assert_eq!(
+            format!("{from_full:?}"),
+            format!("{from_near:?}"),
+            "{lines} lines"
+        );
+        assert!(from_full.iter().any(|r| r.candidate.is_some()));
+    }
 }

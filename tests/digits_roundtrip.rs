@@ -43,6 +43,7 @@ fn assigned() -> (Vec<u8>, ClassifiedLines) {
         list: &list,
         predictions: &predictions,
         assignments: &assignments,
+        evidence: None,
     });
     let lines = records(&list, &predictions, &assignments)
         .iter()
@@ -61,6 +62,7 @@ fn assigned() -> (Vec<u8>, ClassifiedLines) {
                 accept: None,
                 lower_energy_cm1: Some(candidate.lower_energy_cm1),
                 upper_energy_cm1: Some(candidate.upper_energy_cm1),
+                intensity: row.observed_intensity,
             })
         })
         .collect();

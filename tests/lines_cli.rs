@@ -118,10 +118,34 @@ fn example_model_lines_as_csv() {
     let intercombination = find("4s2 1S 0", "4s.4p 3P° 1");
     assert_eq!(intercombination["flags"], "intercombination");
     assert!(number(intercombination, "gf") < 1e-3 * number(resonance, "gf"));
-    // No 0–0 line, no ΔJ = 2 line (Condon & Shortley 1935, ch. 9).
+    // No 0–0 line, no |ΔJ| ≥ 2 line (Condon & Shortley 1935, ch. 9), and each
+    // line joins opposite parities (Laporte's rule: odd terms carry °).
+    let twice_j = |text: &str| -> i64 {
+        match text.split_once('/') {
+            Some((p, _)) => p.parse().unwrap(),
+            None => 2 * text.parse::<i64>().unwrap(),
+        }
+    };
+    for r in &rows {
+        let (lower, upper) = (twice_j(&r["lower_J"]), twice_j(&r["upper_J"]));
+        assert!((lower - upper).abs() <= 2, "ΔJ > 1: {r:?}");
+        assert!(!(lower == 0 && upper == 0), "0–0: {r:?}");
+        assert_ne!(
+            r["lower_term"].ends_with('°'),
+            r["upper_term"].ends_with('°'),
+            "same parity: {r:?}"
+        );
+    }
+    // The model has J = 2 levels (4s4p ³P°₂, 4s3d ³D₂, 4p² ¹D₂) and J = 0 ones
+    // (4s² ¹S₀, 4p² ¹S₀): pairs a ΔJ = 2 filter must drop exist, so the check above
+    // can fail.
     assert!(
         rows.iter()
-            .all(|r| !(r["lower_J"] == "0" && r["upper_J"] == "0"))
+            .any(|r| r["lower_J"] == "2" || r["upper_J"] == "2")
+    );
+    assert!(
+        rows.iter()
+            .any(|r| r["lower_J"] == "0" || r["upper_J"] == "0")
     );
 }
 

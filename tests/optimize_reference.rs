@@ -41,6 +41,7 @@ fn optimised_helium_levels_reproduce_the_published_levels() {
                 accept: None,
                 lower_energy_cm1: Some(candidate.lower_energy_cm1),
                 upper_energy_cm1: Some(candidate.upper_energy_cm1),
+                intensity: row.observed_intensity,
             })
         })
         .collect();

@@ -174,7 +174,10 @@ fn jj_limit_groups_levels_by_one_electron_j() {
         .levels(&values(&structure, &[(0, "zeta(2p)", zeta)]))
         .unwrap();
     let got = by_j(&levels);
-    let close = |a: &[f64], b: &[f64]| a.iter().zip(b).all(|(x, y)| (x - y).abs() < 1e-9);
+    // Same length first: a missing level must fail.
+    let close = |a: &[f64], b: &[f64]| {
+        a.len() == b.len() && a.iter().zip(b).all(|(x, y)| (x - y).abs() < 1e-9)
+    };
     assert!(close(&got[&0], &[-2000.0, 1000.0]), "{got:?}");
     assert!(close(&got[&2], &[-500.0]), "{got:?}");
     assert!(close(&got[&4], &[-500.0, 1000.0]), "{got:?}");
@@ -368,6 +371,7 @@ fn two_configuration_mixing_of_s2_and_p2() {
     let levels = structure.levels(&v).unwrap();
     let j0 = &by_j(&levels)[&0];
     let want = [-r / 3f64.sqrt(), 0.0, r / 3f64.sqrt()];
+    assert_eq!(j0.len(), want.len(), "{j0:?}");
     for (g, w) in j0.iter().zip(want) {
         assert!((g - w).abs() < 1e-9, "{j0:?}");
     }
@@ -390,6 +394,7 @@ fn closed_shells_change_nothing() {
     );
     let a = bare.levels(&v).unwrap();
     let b = core.levels(&v).unwrap();
+    assert_eq!(a.len(), b.len());
     for (x, y) in a.iter().zip(&b) {
         assert!((x.energy_cm1 - y.energy_cm1).abs() < 1e-9);
     }
@@ -455,7 +460,8 @@ fn random_values(structure: &LevelStructure, seeds: &[f64]) -> Vec<f64> {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig { cases: 24, ..ProptestConfig::default() })]
+    // Fixed seed: the same cases in every run (DEVELOPERS.md, "Randomness is seeded").
+    #![proptest_config(ProptestConfig { cases: 24, rng_seed: proptest::test_runner::RngSeed::Fixed(19), ..ProptestConfig::default() })]
 
     #[test]
     fn centre_of_gravity_is_eav(seeds in proptest::collection::vec(-50000.0f64..50000.0, 12)) {
@@ -518,7 +524,10 @@ fn one_electron_replacement_mixing_of_1s2s_and_1s3s() {
         v[structure.parameter_index(&id).unwrap()] = value;
     }
     let levels = by_j(&structure.levels(&v).unwrap());
-    let close = |a: &[f64], b: &[f64]| a.iter().zip(b).all(|(p, q)| (p - q).abs() < 1e-9);
+    // Same length first: a missing level must fail.
+    let close = |a: &[f64], b: &[f64]| {
+        a.len() == b.len() && a.iter().zip(b).all(|(p, q)| (p - q).abs() < 1e-9)
+    };
     assert!(close(&levels[&2], &[-(d - x), d - x]), "{levels:?}");
     assert!(close(&levels[&0], &[-(d + x), d + x]), "{levels:?}");
 }

@@ -323,6 +323,7 @@ fn pure_ls_energies_match_term_energies_for_random_parameters() {
             "{name}"
         );
         for (j, got) in &got_by_j {
+            assert_eq!(got.len(), want_by_j[j].len(), "{name} 2J={j}: level count");
             for (g, w) in got.iter().zip(&want_by_j[j]) {
                 let scale = w.abs().max(1.0);
                 assert!(

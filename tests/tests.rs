@@ -4,19 +4,26 @@
 
 mod angular_tables;
 mod assign_cli;
+mod assign_intensity;
 mod assign_reference;
 mod compiled_spectra;
 mod digits_roundtrip;
+mod figures;
+mod find_levels_cli;
 mod fit_cli;
 mod fit_physics;
 mod fit_roundtrip;
+mod fuzz_corpus;
+mod level_search;
 mod levels_cli;
 mod lines_cli;
 mod optimize_cli;
 mod optimize_reference;
 mod plasma_synthetic;
 mod radial;
+mod radial_rydberg;
 mod structure_physics;
 mod structure_tables;
+mod trust_cli;
 mod units;
 mod util;

@@ -147,7 +147,8 @@ fn the_default_formula_is_birch_and_downs_as_given_by_morton() {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig { cases: 512, ..ProptestConfig::default() })]
+    // Fixed seed: the same cases in every run (DEVELOPERS.md, "Randomness is seeded").
+    #![proptest_config(ProptestConfig { cases: 512, rng_seed: proptest::test_runner::RngSeed::Fixed(18), ..ProptestConfig::default() })]
 
     #[test]
     fn air_to_vacuum_to_air_is_the_identity(

@@ -259,7 +259,8 @@ mod tests {
     }
 
     proptest! {
-        #![proptest_config(ProptestConfig { cases: 64, ..ProptestConfig::default() })]
+        // Fixed seed: the same cases in every run (DEVELOPERS.md, "Randomness is seeded").
+        #![proptest_config(ProptestConfig { cases: 64, rng_seed: proptest::test_runner::RngSeed::Fixed(17), ..ProptestConfig::default() })]
 
         #[test]
         fn three_j_orthogonality(two_j1 in 0u32..8, two_j2 in 0u32..8, pick in 0u32..100) {

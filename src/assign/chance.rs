@@ -37,7 +37,36 @@ pub fn chance_probability(
     others_in_window: usize,
     window_length_cm1: f64,
 ) -> f64 {
-    let w = deviation_cm1.abs().max(combined_uncertainty_cm1);
+    chance_probability_with_floor(
+        deviation_cm1,
+        combined_uncertainty_cm1,
+        others_in_window,
+        window_length_cm1,
+        1.0,
+    )
+}
+
+/// [`chance_probability`] with the distance floored at `floor_fraction`·u_c
+/// instead of u_c: w = max(|Δ|, f·u_c).
+///
+/// Why a smaller floor stays valid: for an observed line at a random position
+/// among predicted lines of density ρ, the nearest lies within d with probability
+/// 1 − exp(−2ρd) (the Poisson gap, as above), so P computed from w = |Δ| of the
+/// nearest candidate is uniformly distributed: Pr(P ≤ α) = α. Any w ≥ |Δ| only makes
+/// P larger (conservative), as does ranking a candidate other than the nearest
+/// first. The floor f·u_c keeps P from claiming more than the measurement can show;
+/// with f = 1 P cannot fall below 1 − exp(−2ρu_c), which at small α makes it many
+/// times conservative; f = 0.1 moves that limit ten times lower.
+pub fn chance_probability_with_floor(
+    deviation_cm1: f64,
+    combined_uncertainty_cm1: f64,
+    others_in_window: usize,
+    window_length_cm1: f64,
+    floor_fraction: f64,
+) -> f64 {
+    let w = deviation_cm1
+        .abs()
+        .max(floor_fraction * combined_uncertainty_cm1);
     if !(w > 0.0 && window_length_cm1 > 0.0) {
         return 0.0;
     }

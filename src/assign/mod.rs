@@ -56,8 +56,12 @@
 //! ```
 
 pub mod chance;
+pub mod evidence;
+mod joint;
+pub mod likelihood;
 mod record;
 mod search;
+pub mod verdict;
 
 use std::fmt;
 
@@ -65,11 +69,16 @@ use serde::{Deserialize, Serialize};
 
 use crate::levels::{PredictedLine, Predictions};
 use crate::linelist::ObservedLine;
+pub use evidence::{
+    EvidenceConfig, EvidenceError, EvidenceResult, LineIntensity, Resolution, SpeciesEvidence,
+    TemperatureSource, assign_with_evidence,
+};
 pub use record::{
     ASSIGN_COLUMNS, AssignmentFile, AssignmentReadError, AssignmentRecord, CandidateRecord,
     predicted_in_given_unit, read_assignments, records,
 };
 use search::{CandidateIndex, Cursor, Hit};
+pub use verdict::Verdict;
 
 /// Settings of the matcher.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
@@ -77,6 +86,12 @@ pub struct MatchConfig {
     tolerance_sigma: f64,
     density_window_factor: f64,
     rule_penalty_sigma: f64,
+    #[serde(default = "default_chance_floor")]
+    chance_floor_fraction: f64,
+}
+
+fn default_chance_floor() -> f64 {
+    1.0
 }
 
 /// A setting out of its range.
@@ -92,6 +107,9 @@ pub enum MatchConfigError {
     /// The rule penalty must be finite and at least 0.
     #[error("the selection-rule penalty must be a number of standard uncertainties ≥ 0, got {0}")]
     RulePenalty(f64),
+    /// The chance floor must lie in (0, 1].
+    #[error("the floor of the chance distance must be a fraction of u_c in (0, 1], got {0}")]
+    ChanceFloor(f64),
 }
 
 impl Default for MatchConfig {
@@ -100,6 +118,7 @@ impl Default for MatchConfig {
             tolerance_sigma: MatchConfig::DEFAULT_TOLERANCE_SIGMA,
             density_window_factor: MatchConfig::DEFAULT_DENSITY_WINDOW_FACTOR,
             rule_penalty_sigma: MatchConfig::DEFAULT_RULE_PENALTY_SIGMA,
+            chance_floor_fraction: 1.0,
         }
     }
 }
@@ -154,6 +173,24 @@ impl MatchConfig {
         Ok(self)
     }
 
+    /// The chance probability counts an unrelated line as "at least as close" within
+    /// w = max(|Δ|, f·u_c) (see [`chance`]); f in (0, 1]. Default 1 (the position-only
+    /// ranking); the intensity-aware assignment uses
+    /// [`evidence::CHANCE_FLOOR_FRACTION`] (0.1), which keeps P a valid p-value and
+    /// makes it sharper at small α.
+    pub fn with_chance_floor_fraction(mut self, f: f64) -> Result<Self, MatchConfigError> {
+        if !(f.is_finite() && f > 0.0 && f <= 1.0) {
+            return Err(MatchConfigError::ChanceFloor(f));
+        }
+        self.chance_floor_fraction = f;
+        Ok(self)
+    }
+
+    /// The floor f of the chance distance, as a fraction of u_c.
+    pub fn chance_floor_fraction(&self) -> f64 {
+        self.chance_floor_fraction
+    }
+
     /// The selection-rule penalty p, in standard uncertainties.
     pub fn rule_penalty_sigma(&self) -> f64 {
         self.rule_penalty_sigma
@@ -167,6 +204,20 @@ impl MatchConfig {
     /// The density window factor F.
     pub fn density_window_factor(&self) -> f64 {
         self.density_window_factor
+    }
+
+    /// What the observed lines can reach: every predicted line the matcher would
+    /// look at for them lies within σ ± F·k·√(u² + U²) of one of them (a candidate
+    /// within k·u_c, the density count within F·k·u_max, F ≥ 1), U bounding the
+    /// predictions' uncertainty. Predictions outside it can be left out without
+    /// changing any result ([`crate::levels::ListReach`]).
+    pub fn reach_of(&self, observed: &[ObservedLine]) -> crate::levels::ListReach {
+        crate::levels::ListReach::new(
+            observed
+                .iter()
+                .map(|l| (l.wavenumber_cm1, l.uncertainty_cm1)),
+            self.density_window_factor * self.tolerance_sigma,
+        )
     }
 }
 
@@ -239,6 +290,29 @@ pub struct Candidate {
     pub ranking_sigma: f64,
     /// Probability that a line this close is a chance coincidence (see [`chance`]).
     pub chance_probability: f64,
+    /// What the intensity-aware assignment found ([`evidence`]); `None` in the
+    /// position-only ranking.
+    #[serde(default)]
+    pub evidence: Option<CandidateEvidence>,
+}
+
+/// The intensity-aware assignment's view of one candidate.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+pub struct CandidateEvidence {
+    /// The log-likelihood ranked on (natural log; see [`likelihood`]).
+    pub log_likelihood: f64,
+    /// Predicted intensity relative to the strongest line of its species in the
+    /// range of the list (= 1), at the species' excitation temperature; `None`
+    /// without a transition probability.
+    pub predicted_relative_intensity: Option<f64>,
+    /// Observed intensity over the predicted one on the species' fitted scale (for
+    /// a member of a declared blend, over the blend's summed prediction); `None`
+    /// without an intensity, a transition probability or a scale.
+    pub observed_to_predicted_intensity: Option<f64>,
+    /// The verdict on the candidate's species.
+    pub species_verdict: Verdict,
+    /// Rank by log-likelihood on this line alone, before the joint resolution.
+    pub per_line_rank: usize,
 }
 
 impl Candidate {
@@ -273,6 +347,12 @@ pub struct LineAssignment {
     pub observed: usize,
     /// Candidates, ranked.
     pub candidates: Vec<Candidate>,
+    /// Set by the intensity-aware assignment: whether the line is a declared blend
+    /// (its first candidates are predictions of comparable intensity that it
+    /// explains together). `None`: a blend is any line with more than one
+    /// candidate.
+    #[serde(default)]
+    pub declared_blend: Option<bool>,
 }
 
 impl LineAssignment {
@@ -281,9 +361,10 @@ impl LineAssignment {
         self.candidates.is_empty()
     }
 
-    /// True when more than one candidate lies within tolerance (flag `blend`).
+    /// The flag `blend`: in the position-only ranking, more than one candidate lies
+    /// within tolerance; in the intensity-aware one, the line is a declared blend.
     pub fn is_blend(&self) -> bool {
-        self.candidates.len() > 1
+        self.declared_blend.unwrap_or(self.candidates.len() > 1)
     }
 }
 
@@ -334,6 +415,7 @@ pub fn assign_lines_with_progress(
         .map(|observed| LineAssignment {
             observed,
             candidates: Vec::new(),
+            declared_blend: None,
         })
         .collect();
     let mut done = 0;
@@ -459,12 +541,14 @@ fn rank(
                     (deviation_sigma * deviation_sigma + f64::from(broken) * penalty * penalty)
                         .sqrt()
                 },
-                chance_probability: chance::chance_probability(
+                chance_probability: chance::chance_probability_with_floor(
                     hit.deviation_cm1,
                     u_c,
                     in_window.saturating_sub(1),
                     length,
+                    config.chance_floor_fraction,
                 ),
+                evidence: None,
             }
         })
         .collect();

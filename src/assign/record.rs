@@ -37,6 +37,10 @@ use crate::units::{LengthUnit, Medium, Wavelength};
 /// | `chance_probability` | probability that the match is a chance coincidence |
 /// | `selection_rules` | `LS` or `parity+J` |
 /// | `flags` | `;`-separated: `intercombination`, `L-forbidden`, `jump-forbidden`, `two-electron-jump`, `blend`, `unassigned` |
+/// | `observed_to_predicted_intensity` | observed intensity over the predicted one on the species' fitted scale (over a declared blend's sum for its members); blank without an intensity, a transition probability, or in `--position-only` |
+/// | `predicted_relative_intensity` | predicted intensity relative to the species' strongest line in the range of the list (= 1), at its excitation temperature; blank without a transition probability |
+/// | `log_likelihood` | the natural-log likelihood ranked on (see [`super::likelihood`]); blank in `--position-only` |
+/// | `species_verdict` | `present`, `absent` or `undecided` for the candidate's species; blank in `--position-only` |
 ///
 /// Terms are printed `2S+1 L` with `°` for odd parity (`3P°`), pair-coupling terms
 /// `2[3/2]°`. Numbers carry the digits they have (see [`crate::report::digits`]):
@@ -45,7 +49,7 @@ use crate::units::{LengthUnit, Medium, Wavelength};
 /// `predicted_strength` to three significant digits, `given_value` and
 /// `observed_intensity` as read. The writer is `crate::report::write_assign_csv`,
 /// whose table of columns says how each is written.
-pub const ASSIGN_COLUMNS: [&str; 28] = [
+pub const ASSIGN_COLUMNS: [&str; 32] = [
     "line",
     "given_value",
     "given_unit",
@@ -74,6 +78,10 @@ pub const ASSIGN_COLUMNS: [&str; 28] = [
     "chance_probability",
     "selection_rules",
     "flags",
+    "observed_to_predicted_intensity",
+    "predicted_relative_intensity",
+    "log_likelihood",
+    "species_verdict",
 ];
 
 /// Columns a file must have to be read back; the others may be absent.

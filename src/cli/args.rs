@@ -20,6 +20,9 @@ pub enum Command {
     /// with the probability that each match is chance.
     #[command(long_about = super::assign::LONG_ABOUT)]
     Assign(super::assign::AssignArgs),
+    /// Search the unassigned lines for new levels: energies at which several lines
+    /// combine with known levels, with allowed J and chance probability.
+    FindLevels(super::find_levels::FindLevelsArgs),
     /// Fit the free parameters of a level model to experimental levels
     /// (Levenberg–Marquardt), with standard errors and correlations.
     #[command(long_about = super::fit::LONG_ABOUT)]
@@ -35,6 +38,9 @@ pub enum Command {
     /// Orbitals and radial integrals (E_av, F^k, G^k, R^k, ζ, ⟨r⟩) of configurations,
     /// from a self-consistent field; optionally a starting level model of them.
     Radial(super::radial::RadialArgs),
+    /// Assign, optimise (and fit) one line list and write it all, tables and
+    /// figures, as one self-contained HTML page.
+    Report(super::report::ReportArgs),
 }
 
 #[cfg(test)]

@@ -6,17 +6,26 @@ use std::path::{Path, PathBuf};
 use clap::ValueEnum;
 
 use super::CliError;
-use super::input::{open_input, read_levels_file};
-use super::output::{write_output, write_output_with};
-use crate::assign::{MatchConfig, MatchProgress, assign_lines_with_progress};
+use super::input::open_input;
+use super::level_sets::{LevelSets, level_sets};
+use super::output::{write_atomically, write_output, write_output_with};
+use crate::assign::{
+    EvidenceConfig, LineIntensity, MatchConfig, MatchProgress, Resolution,
+    assign_lines_with_progress, assign_with_evidence,
+};
 use crate::levels::{
-    EMBEDDED_TABLES, EmbeddedTable, Predictions, compiled_predictions, embedded_stages,
+    EMBEDDED_TABLES, ListReach, Predictions, compiled_predictions, compiled_predictions_near,
     embedded_table, predict_from_table,
 };
 use crate::linelist::{GlobalUncertainty, LineList, ReadOptions, read_line_list};
 use crate::notation::Species;
+use crate::plasma::IntensityUnits;
+use crate::report::figures::{
+    SpectrumAxis, StickWindow, boltzmann_from_records, boltzmann_svg, stick_spectrum_from,
+    stick_spectrum_svg,
+};
 use crate::report::{
-    AssignReport, InputSummary, TableOptions, write_assign_csv, write_assign_json,
+    AssignReport, EvidenceView, InputSummary, TableOptions, write_assign_csv, write_assign_json,
     write_assign_table,
 };
 use crate::transitions::model_predictions;
@@ -71,7 +80,7 @@ pub struct AssignArgs {
     /// Standard uncertainty of the model's level energies, cm⁻¹, combined in
     /// quadrature with each observed line's uncertainty when matching its lines.
     /// [default: model_uncertainty_cm1 of the model file]
-    #[arg(long = "model-uncertainty", value_name = "CM1")]
+    #[arg(long = "model-uncertainty", value_name = "CM1", requires = "model")]
     pub model_uncertainty: Option<f64>,
 
     /// Accept a candidate when it lies within K combined standard uncertainties of the
@@ -112,7 +121,7 @@ pub struct AssignArgs {
 
     /// Standard uncertainty of lines that do not give one, with its unit: 0.002nm,
     /// 0.02A, 0.05cm-1.
-    #[arg(long, value_name = "VALUE")]
+    #[arg(long, value_name = "VALUE", allow_hyphen_values = true)]
     pub uncertainty: Option<GlobalUncertainty>,
 
     /// Refractive index of standard air used to convert air wavelengths:
@@ -124,6 +133,78 @@ pub struct AssignArgs {
     /// instead of stopping at the first one.
     #[arg(long = "skip-bad")]
     pub skip_bad: bool,
+
+    /// Allow an output file to be one of the input files (replaced once the output
+    /// is complete); without it such a run is refused.
+    #[arg(long = "overwrite-input")]
+    pub overwrite_input: bool,
+    /// Rank by position and selection rules alone, line by line, as without
+    /// intensities (no temperatures, no species verdicts, no joint resolution).
+    #[arg(long = "position-only")]
+    pub position_only: bool,
+
+    /// Rank each line's candidates by log-likelihood on their own, without the
+    /// joint resolution (one transition, one line) over the whole list.
+    #[arg(long = "per-line", conflicts_with = "position_only")]
+    pub per_line: bool,
+
+    /// Starting excitation temperature, K: `"Ar I=11000"` for one species (repeat
+    /// for several), or a number alone for every other species. Each species'
+    /// Boltzmann plot replaces it where the plot is meaningful.
+    /// [default: 8000]
+    #[arg(long = "temperature", value_name = "[SPECTRUM=]KELVIN")]
+    pub temperature: Vec<String>,
+
+    /// What the intensity column measures: photon counts (I ∝ gA e^(−E/kT)) or
+    /// energy (I ∝ gA e^(−E/kT)/λ).
+    #[arg(long = "intensity-units", value_enum, default_value_t = UnitsArg::Photon)]
+    pub intensity_units: UnitsArg,
+
+    /// Also draw the stick spectrum (observed lines above, predicted below, joined by
+    /// their assignments) as SVG to FILE.
+    #[arg(long = "plot", value_name = "FILE.svg")]
+    pub plot: Option<PathBuf>,
+
+    /// The figure's horizontal axis.
+    #[arg(long = "plot-axis", value_enum, default_value_t = PlotAxis::Wavelength)]
+    pub plot_axis: PlotAxis,
+
+    /// The figure's range starts here, in the axis' unit (nm or cm⁻¹). [default: the
+    /// observed range]
+    #[arg(long = "plot-from", value_name = "X")]
+    pub plot_from: Option<f64>,
+
+    /// The figure's range ends here, in the axis' unit.
+    #[arg(long = "plot-to", value_name = "X")]
+    pub plot_to: Option<f64>,
+
+    /// Also draw the Boltzmann plot, ln(Iλ/gA) against the upper level's energy, as
+    /// SVG to FILE, from the rank-1 candidates with an intensity and a published gA
+    /// (blends left out).
+    #[arg(long = "boltzmann-plot", value_name = "FILE.svg")]
+    pub boltzmann_plot: Option<PathBuf>,
+
+    /// The spectrum of the Boltzmann plot. [default: the one with most usable lines]
+    #[arg(long = "boltzmann-species", value_name = "SPECTRUM")]
+    pub boltzmann_species: Option<String>,
+}
+
+/// The horizontal axis of the stick spectrum.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum PlotAxis {
+    /// Wavelength, nm: in air at and above 200 nm, in vacuum below.
+    Wavelength,
+    /// Vacuum wavenumber, cm⁻¹.
+    Wavenumber,
+}
+
+/// The intensity units, as typed.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum UnitsArg {
+    /// Photon counts.
+    Photon,
+    /// Energy.
+    Energy,
 }
 
 /// The long description of `termsight assign --help`.
@@ -205,15 +286,19 @@ pub fn run(args: AssignArgs) -> Result<(), CliError> {
     if args.list_species {
         return list_species(&args);
     }
+    check_paths(&args)?;
     let config = match_config(&args)?;
+    // The list first: the compiled spectra are predicted only where its lines reach.
+    let list = read_lines(&args)?;
+    report_skipped(&list);
     let predictions = predictions(
         &args.levels,
         &args.species,
         &args.model,
         args.model_uncertainty,
+        Some(&config.reach_of(&list.lines)),
     )?;
-    let list = read_lines(&args)?;
-    report_skipped(&list);
+    warn_wide_windows(&list, &predictions, &config);
 
     let total = list.lines.len();
     let mut progress = |p: MatchProgress| {
@@ -226,7 +311,32 @@ pub fn run(args: AssignArgs) -> Result<(), CliError> {
             );
         }
     };
-    let assignments = assign_lines_with_progress(&list.lines, &predictions, &config, &mut progress);
+    let evidence_config = evidence_config(&args, &predictions)?;
+    let intensities = if args.position_only {
+        Vec::new()
+    } else {
+        line_intensities(&list)?
+    };
+    let (assignments, result) = if args.position_only {
+        (
+            assign_lines_with_progress(&list.lines, &predictions, &config, &mut progress),
+            None,
+        )
+    } else {
+        let result = assign_with_evidence(
+            &list.lines,
+            &intensities,
+            &predictions,
+            &config,
+            &evidence_config,
+            &mut progress,
+        );
+        (Vec::new(), Some(result))
+    };
+    let assignments = match &result {
+        Some(r) => &r.assignments,
+        None => &assignments,
+    };
     if total > PROGRESS_ABOVE {
         let _ = writeln!(
             io::stderr(),
@@ -239,7 +349,14 @@ pub fn run(args: AssignArgs) -> Result<(), CliError> {
         config: &config,
         list: &list,
         predictions: &predictions,
-        assignments: &assignments,
+        assignments,
+        evidence: result.as_ref().map(|r| EvidenceView {
+            config: &evidence_config,
+            species: &r.species,
+            rounds: r.rounds,
+            converged: r.converged,
+            lines_with_intensity: intensities.iter().flatten().count(),
+        }),
     };
     let options = TableOptions {
         all: args.all,
@@ -249,10 +366,165 @@ pub fn run(args: AssignArgs) -> Result<(), CliError> {
         Format::Table => write_assign_table(&report, &options, out),
         Format::Csv => write_assign_csv(&report, out),
         Format::Json => write_assign_json(&report, out),
-    })
+    })?;
+    write_figures(&args, &report)
 }
 
-fn match_config(args: &AssignArgs) -> Result<MatchConfig, CliError> {
+/// Refuse an output onto an input (see [`super::paths`]).
+fn check_paths(args: &AssignArgs) -> Result<(), CliError> {
+    use super::paths::{NamedPath, check_outputs};
+    let mut inputs: Vec<NamedPath<'_>> = Vec::new();
+    if let Some(path) = &args.lines {
+        inputs.push(NamedPath {
+            option: "LINES",
+            path,
+        });
+    }
+    inputs.extend(args.levels.iter().map(|path| NamedPath {
+        option: "--levels",
+        path,
+    }));
+    inputs.extend(args.model.iter().map(|path| NamedPath {
+        option: "--model",
+        path,
+    }));
+    let outputs: Vec<NamedPath<'_>> = [
+        ("--output", &args.output),
+        ("--plot", &args.plot),
+        ("--boltzmann-plot", &args.boltzmann_plot),
+    ]
+    .into_iter()
+    .filter_map(|(option, path)| path.as_ref().map(|path| NamedPath { option, path }))
+    .collect();
+    check_outputs(&inputs, &outputs, args.overwrite_input)
+}
+
+/// The settings of the intensity-aware assignment from --temperature,
+/// --intensity-units and --per-line.
+fn evidence_config(
+    args: &AssignArgs,
+    predictions: &Predictions,
+) -> Result<EvidenceConfig, CliError> {
+    let mut config = EvidenceConfig {
+        units: match args.intensity_units {
+            UnitsArg::Photon => IntensityUnits::Photon,
+            UnitsArg::Energy => IntensityUnits::Energy,
+        },
+        resolution: if args.per_line {
+            Resolution::PerLine
+        } else {
+            Resolution::Joint
+        },
+        ..EvidenceConfig::default()
+    };
+    for text in &args.temperature {
+        let bad = |why: String| CliError::Message(format!("--temperature '{text}': {why}"));
+        let (species, value) = match text.rsplit_once('=') {
+            Some((species, value)) => (Some(species.trim()), value.trim()),
+            None => (None, text.trim()),
+        };
+        let kelvin: f64 = value
+            .parse()
+            .ok()
+            .filter(|t: &f64| t.is_finite() && *t > 0.0)
+            .ok_or_else(|| bad(format!("'{value}' is not a number of kelvin above 0")))?;
+        match species {
+            None => config.default_temperature_k = kelvin,
+            Some(name) => {
+                let species: Species = name.parse().map_err(|e| bad(format!("{e}")))?;
+                if predictions.summary(species).is_none() {
+                    return Err(bad(format!(
+                        "{species} is not among the spectra matched (add it with --species)"
+                    )));
+                }
+                config.temperatures.retain(|(s, _)| *s != species);
+                config.temperatures.push((species, kelvin));
+            }
+        }
+    }
+    config
+        .validate()
+        .map_err(|e| CliError::Message(format!("--temperature: {e}")))?;
+    Ok(config)
+}
+
+/// Name of the optional column of intensity uncertainties.
+const UNCERTAINTY_INTENSITY: &str = "uncertainty_intensity";
+
+/// The intensity of each line with its uncertainty from the `uncertainty_intensity`
+/// column (a pass-through column of the list, same unit as the intensity), when
+/// there is one.
+fn line_intensities(list: &LineList) -> Result<Vec<Option<LineIntensity>>, CliError> {
+    let column = list
+        .extra_columns
+        .iter()
+        .position(|c| c.trim().eq_ignore_ascii_case(UNCERTAINTY_INTENSITY));
+    list.lines
+        .iter()
+        .map(|line| {
+            let uncertainty = match column.and_then(|c| line.extra.get(c)) {
+                Some(text) if !text.trim().is_empty() => {
+                    let value: f64 = text
+                        .trim()
+                        .parse()
+                        .ok()
+                        .filter(|v: &f64| v.is_finite() && *v >= 0.0)
+                        .ok_or_else(|| {
+                            CliError::Message(format!(
+                                "{}: column '{UNCERTAINTY_INTENSITY}': '{}' is not a number ≥ 0",
+                                crate::location::Location::line(&list.source, line.source_line),
+                                text.trim()
+                            ))
+                        })?;
+                    Some(value)
+                }
+                _ => None,
+            };
+            Ok(line
+                .intensity
+                .and_then(|i| LineIntensity::new(i, uncertainty)))
+        })
+        .collect()
+}
+
+/// The figures asked for with --plot and --boltzmann-plot.
+fn write_figures(args: &AssignArgs, report: &AssignReport<'_>) -> Result<(), CliError> {
+    if let Some(path) = &args.plot {
+        let window = StickWindow {
+            axis: match args.plot_axis {
+                PlotAxis::Wavelength => SpectrumAxis::Wavelength {
+                    air_formula: args.air_formula.into(),
+                },
+                PlotAxis::Wavenumber => SpectrumAxis::Wavenumber,
+            },
+            from: args.plot_from,
+            to: args.plot_to,
+            ..StickWindow::default()
+        };
+        let svg = stick_spectrum_svg(&stick_spectrum_from(report), &window)
+            .map_err(|e| CliError::Message(format!("--plot: {e}")))?;
+        write_atomically(path, svg.as_bytes())?;
+    }
+    if let Some(path) = &args.boltzmann_plot {
+        let species = args
+            .boltzmann_species
+            .as_deref()
+            .map(|s| {
+                s.parse::<Species>()
+                    .map_err(|e| CliError::Message(format!("--boltzmann-species: {e}")))
+            })
+            .transpose()?;
+        let records = crate::assign::records(report.list, report.predictions, report.assignments);
+        let plot = boltzmann_from_records(&report.input.source, &records, species)
+            .map_err(|e| CliError::Message(format!("--boltzmann-plot: {e}")))?;
+        let svg = boltzmann_svg(&plot)
+            .map_err(|e| CliError::Message(format!("--boltzmann-plot: {e}")))?;
+        write_atomically(path, svg.as_bytes())?;
+    }
+    Ok(())
+}
+
+pub(crate) fn match_config(args: &AssignArgs) -> Result<MatchConfig, CliError> {
     fn flag(name: &'static str) -> impl Fn(crate::assign::MatchConfigError) -> CliError {
         move |e| CliError::Message(format!("--{name}: {e}"))
     }
@@ -268,56 +540,21 @@ fn match_config(args: &AssignArgs) -> Result<MatchConfig, CliError> {
 /// The predictions: from the compiled tables named with --species (all of them
 /// when neither --species, --levels nor --model is given), from every level table
 /// given with --levels (a table of a compiled species replaces the compiled one, and
-/// the outputs say so), and from every model.
-fn predictions(
+/// the outputs say so), and from every model. With `reach`, the compiled spectra
+/// keep only the lines its observed lines can reach (the same results, sooner).
+pub(crate) fn predictions(
     level_files: &[PathBuf],
     species_names: &[String],
     models: &[PathBuf],
     model_uncertainty: Option<f64>,
+    reach: Option<&ListReach>,
 ) -> Result<Predictions, CliError> {
-    let mut wanted: Vec<Species> = Vec::new();
-    for name in species_names {
-        for species in requested_species(name)? {
-            // The same species named twice is asked for once (not "given twice").
-            if !wanted.contains(&species) {
-                wanted.push(species);
-            }
-        }
-    }
-    let tables = level_files
-        .iter()
-        .map(|path| read_levels_file(path))
-        .collect::<Result<Vec<_>, _>>()?;
-    let in_tables = |species: &Species| tables.iter().any(|t| t.species().contains(species));
-    let compiled: Vec<&EmbeddedTable> = if wanted.is_empty() {
-        if tables.is_empty() && models.is_empty() {
-            EMBEDDED_TABLES.iter().collect()
-        } else {
-            Vec::new()
-        }
-    } else {
-        let mut chosen = Vec::new();
-        for species in &wanted {
-            if in_tables(species) {
-                continue; // the user's table replaces the compiled one
-            }
-            chosen.push(embedded_table(*species).ok_or_else(|| {
-                CliError::Message(format!(
-                    "--species: no compiled table of {species}{}; compiled: {} (give your \
-                     own with --levels FILE)",
-                    if tables.is_empty() {
-                        ""
-                    } else {
-                        " and no level of it in the tables given with --levels"
-                    },
-                    EMBEDDED_TABLES.map(|t| t.species).join(", ")
-                ))
-            })?);
-        }
-        chosen
-    };
-    let mut sets =
-        vec![compiled_predictions(&compiled).map_err(|e| CliError::Message(e.to_string()))?];
+    let LevelSets {
+        wanted,
+        compiled,
+        tables,
+    } = level_sets(level_files, species_names, !models.is_empty())?;
+    let mut sets = Vec::new();
     for table in &tables {
         let mut set = predict_from_table(table)
             .map_err(|e| CliError::Message(format!("{}: {e}", table.source)))?;
@@ -349,31 +586,29 @@ fn predictions(
     for path in models {
         sets.push(model_predictions_from(path, model_uncertainty)?);
     }
+    // The largest uncertainty of the other predictions widens the reach of the list
+    // (a broad candidate widens the density window of its line).
+    let other_uncertainty = sets
+        .iter()
+        .flat_map(|set| {
+            set.lines().iter().map(|line| {
+                line.uncertainty_cm1
+                    .hypot(set.model_uncertainty_cm1(line.species))
+            })
+        })
+        .fold(0.0, f64::max);
+    let compiled = match reach {
+        Some(reach) => compiled_predictions_near(&compiled, reach, other_uncertainty),
+        None => compiled_predictions(&compiled),
+    }
+    .map_err(|e| CliError::Message(e.to_string()))?;
+    // The compiled spectra first, as the outputs list them.
+    sets.insert(0, compiled);
     Predictions::combine(sets).map_err(|e| {
         CliError::Message(format!(
             "{e}; each species may come from one level table or model only"
         ))
     })
-}
-
-/// The spectra named by one --species value: a spectrum (`Fe II`, `HeI`), or an
-/// element symbol alone for every compiled stage of it (`Ar`).
-fn requested_species(name: &str) -> Result<Vec<Species>, CliError> {
-    let symbol = name.trim();
-    if let Some(z) = crate::notation::element::atomic_number(symbol) {
-        let stages = embedded_stages(z);
-        if stages.is_empty() {
-            return Err(CliError::Message(format!(
-                "--species: no compiled spectrum of {symbol}; compiled: {} (give your own \
-                 with --levels FILE, naming the stage as in \"{symbol} I\")",
-                EMBEDDED_TABLES.map(|t| t.species).join(", ")
-            )));
-        }
-        return Ok(stages.iter().map(|t| t.spectrum()).collect());
-    }
-    name.parse::<Species>()
-        .map(|s| vec![s])
-        .map_err(|e| CliError::Message(format!("--species: {e}")))
 }
 
 /// The predictions of the level model in `path`, with the model uncertainty from
@@ -433,17 +668,32 @@ fn list_species(args: &AssignArgs) -> Result<(), CliError> {
     write_output(args.output.as_deref(), text.as_bytes())
 }
 
-fn read_lines(args: &AssignArgs) -> Result<LineList, CliError> {
-    let options = ReadOptions {
-        medium: args.medium.map(|m| match m {
+/// How to read a line list, from the reading flags (shared with `find-levels`).
+pub(crate) fn read_options(
+    medium: Option<MediumArg>,
+    uncertainty: Option<GlobalUncertainty>,
+    air_formula: AirFormulaArg,
+    skip_bad: bool,
+) -> ReadOptions {
+    ReadOptions {
+        medium: medium.map(|m| match m {
             MediumArg::Air => Medium::Air,
             MediumArg::Vacuum => Medium::Vacuum,
         }),
-        uncertainty: args.uncertainty,
-        air_formula: args.air_formula.into(),
-        skip_bad: args.skip_bad,
+        uncertainty,
+        air_formula: air_formula.into(),
+        skip_bad,
         ..ReadOptions::default()
-    };
+    }
+}
+
+fn read_lines(args: &AssignArgs) -> Result<LineList, CliError> {
+    let options = read_options(
+        args.medium,
+        args.uncertainty,
+        args.air_formula,
+        args.skip_bad,
+    );
     let read_error = |e: crate::linelist::LineListError| CliError::Message(e.to_string());
     let path = args
         .lines
@@ -453,7 +703,47 @@ fn read_lines(args: &AssignArgs) -> Result<LineList, CliError> {
     read_line_list(reader, &name, &options).map_err(read_error)
 }
 
-fn report_skipped(list: &LineList) {
+/// Lines warned about for a window wider than every prediction, at most.
+const WIDE_WINDOWS_SHOWN: usize = 20;
+
+/// Warn, naming the row, about each line whose acceptance window ±K·u already spans
+/// every predicted line: its uncertainty is surely wrong (a unit or a column mixed
+/// up), and every prediction becomes its candidate.
+fn warn_wide_windows(list: &LineList, predictions: &Predictions, config: &MatchConfig) {
+    // The span of every line predicted (those beyond the list's reach included).
+    let Some((low, high)) = predictions.span_cm1() else {
+        return;
+    };
+    if predictions.lines().len() < 2 || high <= low {
+        return;
+    }
+    let k = config.tolerance_sigma();
+    let wide = list.lines.iter().filter(|line| {
+        line.wavenumber_cm1 - k * line.uncertainty_cm1 <= low
+            && line.wavenumber_cm1 + k * line.uncertainty_cm1 >= high
+    });
+    let mut stderr = io::stderr().lock();
+    for (shown, line) in wide.enumerate() {
+        if shown == WIDE_WINDOWS_SHOWN {
+            let _ = writeln!(
+                stderr,
+                "termsight: warning: more such lines in {}",
+                list.source
+            );
+            break;
+        }
+        let _ = writeln!(
+            stderr,
+            "termsight: warning: {}:{}: the uncertainty {:.4e} cm-1 (×{k} = --within) spans \
+             every predicted line ({low:.3}–{high:.3} cm-1): every prediction is a \
+             candidate; check the uncertainty's unit and column",
+            list.source, line.source_line, line.uncertainty_cm1
+        );
+    }
+}
+
+/// The rows left out under --skip-bad, on standard error.
+pub(crate) fn report_skipped(list: &LineList) {
     let mut stderr = io::stderr().lock();
     for skipped in &list.skipped {
         let _ = writeln!(
@@ -490,12 +780,12 @@ mod tests {
 
     #[test]
     fn unknown_species_names_the_compiled_ones() {
-        let e = predictions(&[], &["Xe III".to_string()], &[], None).unwrap_err();
+        let e = predictions(&[], &["Xe III".to_string()], &[], None, None).unwrap_err();
         assert!(e.to_string().contains("no compiled table of Xe III"), "{e}");
         assert!(e.to_string().contains("H I, He I, Li I"), "{e}");
-        let e = predictions(&[], &["Xe".to_string()], &[], None).unwrap_err();
+        let e = predictions(&[], &["Xe".to_string()], &[], None, None).unwrap_err();
         assert!(e.to_string().contains("no compiled spectrum of Xe"), "{e}");
-        let e = predictions(&[], &["Xx I".to_string()], &[], None).unwrap_err();
+        let e = predictions(&[], &["Xx I".to_string()], &[], None, None).unwrap_err();
         assert!(
             e.to_string().starts_with("--species: cannot read species"),
             "{e}"
@@ -504,9 +794,9 @@ mod tests {
 
     #[test]
     fn default_is_every_compiled_table() {
-        let p = predictions(&[], &[], &[], None).unwrap();
+        let p = predictions(&[], &[], &[], None, None).unwrap();
         assert_eq!(p.species().len(), EMBEDDED_TABLES.len());
-        let p = predictions(&[], &["He I".into(), "Ne I".into()], &[], None).unwrap();
+        let p = predictions(&[], &["He I".into(), "Ne I".into()], &[], None, None).unwrap();
         let names: Vec<String> = p.species().iter().map(|s| s.species.to_string()).collect();
         assert_eq!(names, vec!["He I", "Ne I"]);
     }
@@ -517,6 +807,7 @@ mod tests {
             &[],
             &["Ar".into(), "He I".into(), "Ar II".into()],
             &[],
+            None,
             None,
         )
         .unwrap();

@@ -8,11 +8,14 @@ use std::time::{Duration, Instant};
 use super::CliError;
 use super::input::{open_file, read_levels_file};
 use super::output::{write_atomically, write_output};
+use super::paths::{NamedPath, check_outputs};
+use super::progress::ModelProgress;
 use crate::fit::{Convergence, FitOptions, FitProgress, Weighting, fit_levels, simple_picture};
 use crate::levels::{EMBEDDED_TABLES, LevelTable, embedded_table};
 use crate::notation::Species;
-use crate::report::{FitReport, fit_json, fit_table};
-use crate::structure::model::{LoadedModel, read_model, write_model};
+use crate::report::figures::{fit_residuals_from, fit_residuals_svg};
+use crate::report::{FitReport, fit_json, fit_table, fitted_model_toml};
+use crate::structure::model::{LoadedModel, read_model_with_progress};
 
 /// Long help of `termsight fit`.
 pub const LONG_ABOUT: &str = "\
@@ -64,20 +67,17 @@ pub enum WeightsArg {
     Uncertainty,
 }
 
-/// Arguments of `termsight fit`.
+/// Arguments of `termsight fit`: the experimental levels come from --levels or
+/// --species, one of the two.
 #[derive(Debug, clap::Args)]
+#[command(group(clap::ArgGroup::new("level_source").required(true).args(["levels", "species"])))]
 pub struct FitArgs {
     /// The level model of the ion (TOML), whose free parameters are fitted.
     pub model: PathBuf,
     /// The experimental levels: a level table (CSV with the columns
     /// species,configuration,term,J,energy_cm1,uncertainty_cm1,source), such as
     /// `termsight optimize` writes.
-    #[arg(
-        long,
-        value_name = "FILE",
-        required_unless_present = "species",
-        conflicts_with = "species"
-    )]
+    #[arg(long, value_name = "FILE", conflicts_with = "species")]
     pub levels: Option<PathBuf>,
     /// Fit to the compiled level table of this spectrum instead ("He I"); it must be
     /// the model's species (the 29 compiled spectra: `termsight assign --list-species`).
@@ -110,6 +110,13 @@ pub struct FitArgs {
     /// Print no progress lines on standard error.
     #[arg(long)]
     pub quiet: bool,
+    /// Allow an output file to be one of the input files (replaced once the output
+    /// is complete); without it such a run is refused.
+    #[arg(long = "overwrite-input")]
+    pub overwrite_input: bool,
+    /// Also draw E_exp − E_calc of every fitted level against its energy as SVG to FILE.
+    #[arg(long = "plot", value_name = "FILE.svg")]
+    pub plot: Option<PathBuf>,
 }
 
 /// Progress lines start once a fit has run this long.
@@ -117,9 +124,35 @@ const PROGRESS_AFTER: Duration = Duration::from_secs(1);
 
 /// Run `termsight fit`.
 pub fn run(args: FitArgs) -> Result<(), CliError> {
+    let mut inputs = vec![NamedPath {
+        option: "MODEL",
+        path: &args.model,
+    }];
+    if let Some(path) = &args.levels {
+        inputs.push(NamedPath {
+            option: "--levels",
+            path,
+        });
+    }
+    let mut outputs = Vec::new();
+    if let Some(path) = &args.output {
+        outputs.push(NamedPath {
+            option: "--output",
+            path,
+        });
+    }
+    if let Some(path) = &args.model_out {
+        outputs.push(NamedPath {
+            option: "--model-out",
+            path,
+        });
+    }
+    check_outputs(&inputs, &outputs, args.overwrite_input)?;
     let (reader, model_path) = open_file(&args.model)?;
-    let LoadedModel { model, structure } =
-        read_model(reader, &model_path).map_err(|e| CliError::Message(e.to_string()))?;
+    let mut progress = ModelProgress::new("fit", args.quiet);
+    let loaded = read_model_with_progress(reader, &model_path, |p| progress.build(p));
+    progress.finish();
+    let LoadedModel { model, structure } = loaded.map_err(|e| CliError::Message(e.to_string()))?;
     let table = level_table(&args, model.species)?;
 
     let mut options = FitOptions::default();
@@ -168,19 +201,13 @@ pub fn run(args: FitArgs) -> Result<(), CliError> {
     };
 
     if let Some(path) = &args.model_out {
-        let mut toml = format!(
-            "# Fitted by termsight fit to {} ({} levels, {} free parameters, {} degrees of \
-             freedom{}).\n# Uncertainties are standard errors of the fit.\n",
-            table.source,
-            result.levels.len(),
-            result.free_parameters,
-            result.degrees_of_freedom,
-            result
-                .sigma_cm1
-                .map_or_else(String::new, |s| format!(", σ = {s:.6} cm⁻¹"))
-        );
-        toml.push_str(&write_model(&fitted));
-        write_atomically(path, toml.as_bytes())?;
+        write_atomically(path, fitted_model_toml(&report).as_bytes())?;
+    }
+    if let Some(path) = &args.plot {
+        let source = format!("{model_path} with {}", table.source);
+        let svg = fit_residuals_svg(&fit_residuals_from(&source, &result))
+            .map_err(|e| CliError::Message(format!("--plot: {e}")))?;
+        write_atomically(path, svg.as_bytes())?;
     }
     // Warnings also reach the terminal when the report does not.
     if args.format != FitFormat::Table || args.output.is_some() {

@@ -7,10 +7,13 @@ use std::path::{Path, PathBuf};
 use super::CliError;
 use super::assign::AirFormulaArg;
 use super::input::open_file;
-use super::output::write_output;
+use super::output::{write_atomically, write_output};
+use super::paths::{NamedPath, check_outputs};
+use super::progress::ModelProgress;
+use crate::report::figures::{model_spectrum_from, model_spectrum_svg};
 use crate::report::{LineSelection, LinesReport, lines_csv, lines_json, lines_table};
 use crate::structure::DipoleIntegral;
-use crate::structure::model::{LoadedModel, read_model};
+use crate::structure::model::{LoadedModel, read_model_with_progress};
 use crate::transitions::{DipoleOperator, DipoleProgress, ModelSpectrum, model_spectrum};
 
 /// Predict the electric-dipole lines of a level model: every pair of levels of
@@ -53,6 +56,15 @@ pub struct LinesArgs {
     /// Write to FILE instead of standard output (it appears complete or not at all).
     #[arg(short = 'o', long, value_name = "FILE")]
     pub output: Option<PathBuf>,
+
+    /// Allow an output file to be one of the input files (replaced once the output
+    /// is complete); without it such a run is refused.
+    #[arg(long = "overwrite-input")]
+    pub overwrite_input: bool,
+    /// Also draw the selected lines as sticks of log gf (intercombination lines
+    /// marked) as SVG to FILE.
+    #[arg(long = "plot", value_name = "FILE.svg")]
+    pub plot: Option<PathBuf>,
 }
 
 const AFTER_HELP: &str = "\
@@ -95,7 +107,10 @@ pub(crate) struct ModelLines {
 /// Read `path` and predict its lines; errors name the file.
 pub(crate) fn model_lines(path: &Path) -> Result<ModelLines, CliError> {
     let (reader, name) = open_file(path)?;
-    let loaded = read_model(reader, &name).map_err(|e| CliError::Message(e.to_string()))?;
+    let mut progress = ModelProgress::new("lines", false);
+    let loaded = read_model_with_progress(reader, &name, |p| progress.build(p));
+    progress.finish();
+    let loaded = loaded.map_err(|e| CliError::Message(e.to_string()))?;
     let structure = &loaded.structure;
     let message =
         |e: crate::transitions::TransitionError| CliError::Message(format!("{name}: {e}"));
@@ -141,6 +156,22 @@ pub(crate) fn model_lines(path: &Path) -> Result<ModelLines, CliError> {
 
 /// Run `termsight lines`.
 pub fn run(args: LinesArgs) -> Result<(), CliError> {
+    let outputs: Vec<NamedPath<'_>> = args
+        .output
+        .iter()
+        .map(|path| NamedPath {
+            option: "--output",
+            path,
+        })
+        .collect();
+    check_outputs(
+        &[NamedPath {
+            option: "MODEL",
+            path: &args.model,
+        }],
+        &outputs,
+        args.overwrite_input,
+    )?;
     for (flag, value) in [("from", args.from_nm), ("to", args.to_nm)] {
         if value.is_some_and(|v| !(v.is_finite() && v > 0.0)) {
             return Err(CliError::Message(format!(
@@ -178,5 +209,11 @@ pub fn run(args: LinesArgs) -> Result<(), CliError> {
         LinesFormat::Csv => lines_csv(&report),
         LinesFormat::Json => lines_json(&report).into_bytes(),
     };
-    write_output(args.output.as_deref(), &bytes)
+    write_output(args.output.as_deref(), &bytes)?;
+    if let Some(path) = &args.plot {
+        let svg = model_spectrum_svg(&model_spectrum_from(&report))
+            .map_err(|e| CliError::Message(format!("--plot: {e}")))?;
+        write_atomically(path, svg.as_bytes())?;
+    }
+    Ok(())
 }

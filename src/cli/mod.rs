@@ -7,13 +7,18 @@
 
 pub mod args;
 pub mod assign;
+pub mod find_levels;
 pub mod fit;
 pub mod input;
+pub mod level_sets;
 pub mod levels;
 pub mod lines;
 pub mod optimize;
 pub mod output;
+pub mod paths;
+mod progress;
 pub mod radial;
+pub mod report;
 
 use std::io::{self, Write};
 use std::process::ExitCode;
@@ -42,11 +47,13 @@ pub fn main() -> ExitCode {
 pub fn run(cli: Cli) -> Result<(), CliError> {
     match cli.command {
         Command::Assign(args) => assign::run(args),
+        Command::FindLevels(args) => find_levels::run(args),
         Command::Fit(args) => fit::run(args),
         Command::Levels(args) => levels::run(args),
         Command::Lines(args) => lines::run(args),
         Command::Optimize(args) => optimize::run(args),
         Command::Radial(args) => radial::run(args),
+        Command::Report(args) => report::run(args),
     }
 }
 

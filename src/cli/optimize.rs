@@ -1,6 +1,7 @@
 //! `termsight optimize ASSIGNED.csv`: level energies from the accepted assignments,
 //! by weighted least squares, with Ritz wavenumbers and wavelengths of every line.
 
+use std::io::Write;
 use std::path::PathBuf;
 
 use clap::ValueEnum;
@@ -9,12 +10,17 @@ use super::CliError;
 use super::assign::AirFormulaArg;
 use super::input::open_input;
 use super::output::{write_atomically, write_output};
+use super::paths::{NamedPath, check_outputs};
 use crate::levels::LevelLabel;
+use crate::levels::optimize::OptimizationReport;
 use crate::levels::optimize::{
     BlendPolicy, ClassifiedLines, OptimizeOptions, SpectrumError, optimize_classified,
     read_classified_lines,
 };
 use crate::notation::Species;
+use crate::report::figures::{
+    ritz_residuals_from, ritz_residuals_svg, term_diagram_from, term_diagram_svg,
+};
 use crate::report::{
     OptimizeContext, optimize_json, optimize_table, optimized_levels_csv, optimized_lines_csv,
 };
@@ -109,10 +115,45 @@ pub struct OptimizeArgs {
     /// List every line in the terminal output, not only the outliers.
     #[arg(long = "show-lines")]
     pub show_lines: bool,
+    /// Allow an output file to be one of the input files (replaced once the output
+    /// is complete); without it such a run is refused.
+    #[arg(long = "overwrite-input")]
+    pub overwrite_input: bool,
+    /// Also draw every line's (observed − Ritz)/u against its wavenumber as SVG to FILE.
+    #[arg(long = "plot", value_name = "FILE.svg")]
+    pub plot: Option<PathBuf>,
+    /// Also draw the term diagram of one spectrum (its optimised levels and the lines
+    /// used) as SVG to FILE.
+    #[arg(long = "term-diagram", value_name = "FILE.svg")]
+    pub term_diagram: Option<PathBuf>,
+    /// The spectrum of the term diagram. [default: the one with most levels]
+    #[arg(long = "diagram-species", value_name = "SPECTRUM")]
+    pub diagram_species: Option<String>,
 }
 
 /// Run `termsight optimize`.
 pub fn run(args: OptimizeArgs) -> Result<(), CliError> {
+    let mut outputs = Vec::new();
+    if let Some(path) = &args.output {
+        outputs.push(NamedPath {
+            option: "--output",
+            path,
+        });
+    }
+    if let Some(path) = &args.lines_out {
+        outputs.push(NamedPath {
+            option: "--lines-out",
+            path,
+        });
+    }
+    check_outputs(
+        &[NamedPath {
+            option: "ASSIGNED",
+            path: &args.assigned,
+        }],
+        &outputs,
+        args.overwrite_input,
+    )?;
     let options = options(&args)?;
     let default_species = args
         .species
@@ -128,6 +169,17 @@ pub fn run(args: OptimizeArgs) -> Result<(), CliError> {
         SpectrumError::WidenedTooFar { .. } => CliError::Message(e.to_string()),
         _ => CliError::Message(format!("{}: {e}", input.source)),
     })?;
+    // The description says it too; the terminal hears of it when the report goes
+    // elsewhere.
+    if args.format != Format::Table || args.output.is_some() {
+        for loss in &report.lost_to_blends {
+            let _ = writeln!(
+                std::io::stderr(),
+                "termsight: warning: {}",
+                crate::report::blend_loss_text(loss)
+            );
+        }
+    }
     let context = OptimizeContext {
         source: &input.source,
         options: &options,
@@ -141,7 +193,59 @@ pub fn run(args: OptimizeArgs) -> Result<(), CliError> {
         Format::Csv => optimized_levels_csv(&report, &context),
         Format::Json => optimize_json(&report, &context).into_bytes(),
     };
-    write_output(args.output.as_deref(), &bytes)
+    write_output(args.output.as_deref(), &bytes)?;
+    if let Some(path) = &args.plot {
+        let data = ritz_residuals_from(&input.source, &report, options.outlier_sigma);
+        let svg =
+            ritz_residuals_svg(&data).map_err(|e| CliError::Message(format!("--plot: {e}")))?;
+        write_atomically(path, svg.as_bytes())?;
+    }
+    if let Some(path) = &args.term_diagram {
+        let species = args
+            .diagram_species
+            .as_deref()
+            .map(|s| {
+                s.parse::<Species>()
+                    .map_err(|e| CliError::Message(format!("--diagram-species: {e}")))
+            })
+            .transpose()?;
+        let svg = diagram_of(&input, &report, species)?;
+        write_atomically(path, svg.as_bytes())?;
+    }
+    Ok(())
+}
+
+/// The term diagram of `species`, or of the spectrum with most levels.
+pub(crate) fn diagram_of(
+    input: &ClassifiedLines,
+    report: &OptimizationReport,
+    species: Option<Species>,
+) -> Result<String, CliError> {
+    let result = match species {
+        Some(s) => report
+            .species
+            .iter()
+            .find(|r| r.species == s)
+            .ok_or_else(|| {
+                CliError::Message(format!(
+                    "--diagram-species: no line of {s} was used; the optimisation has {}",
+                    report
+                        .species
+                        .iter()
+                        .map(|r| r.species.to_string())
+                        .collect::<Vec<_>>()
+                        .join(", ")
+                ))
+            })?,
+        None => report
+            .species
+            .iter()
+            .rev()
+            .max_by_key(|r| r.levels.len())
+            .ok_or_else(|| CliError::Message("--term-diagram: no levels were optimised".into()))?,
+    };
+    let diagram = term_diagram_from(&input.source, result, input, Vec::new());
+    term_diagram_svg(&diagram).map_err(|e| CliError::Message(format!("--term-diagram: {e}")))
 }
 
 fn options(args: &OptimizeArgs) -> Result<OptimizeOptions, CliError> {

@@ -63,6 +63,14 @@ pub fn write_atomically_with(
         Some(parent) if !parent.as_os_str().is_empty() => parent,
         _ => Path::new("."),
     };
+    // Name the directory the user's path is in, not the temporary file, when it
+    // cannot take the output.
+    if let Err(e) = fs::metadata(dir) {
+        return Err(io_error(io::Error::new(
+            e.kind(),
+            format!("cannot write into the directory {}: {e}", dir.display()),
+        )));
+    }
     let mut builder = tempfile::Builder::new();
     #[cfg(unix)]
     {
@@ -70,7 +78,9 @@ pub fn write_atomically_with(
         use std::os::unix::fs::PermissionsExt;
         builder.permissions(fs::Permissions::from_mode(0o666));
     }
-    let mut temp = builder.tempfile_in(dir).map_err(io_error)?;
+    let mut temp = builder
+        .tempfile_in(dir)
+        .map_err(|e| io_error(without_temporary_name(e)))?;
     // On an error the temporary file is removed when `temp` is dropped.
     buffered(temp.as_file_mut(), write).map_err(io_error)?;
     if let Some(meta) = &existing {
@@ -81,6 +91,18 @@ pub fn write_atomically_with(
     temp.as_file().sync_all().map_err(io_error)?;
     temp.persist(&target).map_err(|e| io_error(e.error))?;
     Ok(())
+}
+
+/// `error` without the name of the temporary file: the errors of `tempfile` end in
+/// ` at path "/dir/.tmpXXXX"`, a file the user never named (the message names the
+/// user's path instead). `tempfile` keeps the inner error private, so its text is
+/// cut.
+fn without_temporary_name(error: io::Error) -> io::Error {
+    let text = error.to_string();
+    match text.split_once(" at path ") {
+        Some((head, _)) => io::Error::new(error.kind(), head.to_string()),
+        None => error,
+    }
 }
 
 /// Run `write` on a buffered writer on `file`, then flush it.
@@ -153,12 +175,62 @@ mod tests {
         assert_eq!(std::fs::read_to_string(&target).unwrap(), "new");
     }
 
+    // Not the real /dev/null: a test run as root that broke this would replace it.
+    // A named pipe of the test's own is a file that is not a regular file too.
     #[cfg(unix)]
     #[test]
-    fn writes_into_a_device_in_place() {
-        write_atomically(Path::new("/dev/null"), b"x").unwrap();
-        let meta = std::fs::metadata("/dev/null").unwrap();
-        assert!(!meta.is_file(), "/dev/null was replaced by a regular file");
+    fn writes_into_a_named_pipe_in_place() {
+        use std::io::Read;
+        let dir = tempfile::tempdir().unwrap();
+        let fifo = dir.path().join("pipe");
+        let made = std::process::Command::new("mkfifo")
+            .arg(&fifo)
+            .status()
+            .unwrap();
+        assert!(made.success());
+        let reader = {
+            let fifo = fifo.clone();
+            std::thread::spawn(move || {
+                let mut text = String::new();
+                std::fs::File::open(&fifo)
+                    .unwrap()
+                    .read_to_string(&mut text)
+                    .unwrap();
+                text
+            })
+        };
+        write_atomically(&fifo, b"through the pipe").unwrap();
+        assert_eq!(reader.join().unwrap(), "through the pipe");
+        let meta = std::fs::symlink_metadata(&fifo).unwrap();
+        assert!(!meta.is_file(), "the pipe was replaced by a regular file");
+        assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 1);
+    }
+
+    // Common practice, no source: a file replaced atomically is untouched until the
+    // new one is complete, and the new one is a new file renamed into place (a
+    // write in place would keep the inode and show a truncated file meanwhile).
+    #[cfg(unix)]
+    #[test]
+    fn the_old_file_stays_whole_while_the_new_one_is_written() {
+        use std::os::unix::fs::MetadataExt;
+        let dir = tempfile::tempdir().unwrap();
+        let path = dir.path().join("out.csv");
+        std::fs::write(&path, "old").unwrap();
+        let inode = std::fs::metadata(&path).unwrap().ino();
+        // More than the buffer, so that bytes reach the disk before the end.
+        let big = vec![b'x'; 2 * BUFFER_BYTES + 1];
+        let result = write_atomically_with(&path, |out| {
+            out.write_all(&big)?;
+            out.flush()?;
+            assert_eq!(std::fs::read_to_string(&path).unwrap(), "old");
+            Err(io::Error::other("killed midway"))
+        });
+        assert!(result.is_err());
+        assert_eq!(std::fs::read_to_string(&path).unwrap(), "old");
+        assert_eq!(std::fs::read_dir(dir.path()).unwrap().count(), 1);
+        write_atomically(&path, &big).unwrap();
+        assert_eq!(std::fs::metadata(&path).unwrap().len(), big.len() as u64);
+        assert_ne!(std::fs::metadata(&path).unwrap().ino(), inode);
     }
 
     #[cfg(unix)]
@@ -201,6 +273,28 @@ mod tests {
     #[test]
     fn missing_directory_names_the_path() {
         let err = write_atomically(Path::new("/nonexistent-dir/x.csv"), b"x").unwrap_err();
-        assert!(err.to_string().contains("/nonexistent-dir/x.csv"));
+        let text = err.to_string();
+        assert!(text.starts_with("/nonexistent-dir/x.csv: "), "{text}");
+        // Not the temporary file the user never named.
+        assert!(!text.contains(".tmp"), "{text}");
+    }
+
+    #[cfg(unix)]
+    #[test]
+    fn an_unwritable_directory_names_the_path_not_the_temporary_file() {
+        use std::os::unix::fs::PermissionsExt;
+        let dir = tempfile::tempdir().unwrap();
+        let locked = dir.path().join("locked");
+        std::fs::create_dir(&locked).unwrap();
+        std::fs::set_permissions(&locked, std::fs::Permissions::from_mode(0o500)).unwrap();
+        let path = locked.join("x.csv");
+        let result = write_atomically(&path, b"x");
+        std::fs::set_permissions(&locked, std::fs::Permissions::from_mode(0o700)).unwrap();
+        // Root may write anyway; then there is no message to check.
+        if let Err(err) = result {
+            let text = err.to_string();
+            assert!(text.starts_with(&path.display().to_string()), "{text}");
+            assert!(!text.contains(".tmp"), "{text}");
+        }
     }
 }

@@ -14,20 +14,33 @@ use std::path::PathBuf;
 use std::time::{Duration, Instant};
 
 use clap::ValueEnum;
-use comfy_table::{Cell, CellAlignment, Table, presets::UTF8_BORDERS_ONLY};
-use serde::Serialize;
 
 use crate::notation::{Configuration, Species, element};
-use crate::radial::integrals::mean_radius_bohr;
 use crate::radial::{
-    GridSpec, IntegralKind, RadialIntegral, ScaleFactors, ScfObserver, ScfOptions, ScfProgress,
+    GridRemedy, GridSpec, RadialError, ScaleFactors, ScfObserver, ScfOptions, ScfProgress,
     ScfSolution, ScfStage, hartree_fock, local_exchange, model_file, radial_integrals,
     screened_hydrogenic, starting_model,
 };
-use crate::units::constants::HARTREE_CM1;
+use crate::report::{RadialReport, radial_json, radial_table, relativistic_note};
 
 use super::CliError;
 use super::output::write_atomically;
+
+/// The value of --charge: a whole number ≥ 0, with a message that says what the
+/// charge means instead of quoting the range of an integer type.
+fn parse_charge(text: &str) -> Result<u32, String> {
+    const MEANING: &str = "the charge is 0 for a neutral atom, 1 for a singly charged \
+                           ion (Fe II), 2 for a doubly charged one (Fe III), …";
+    match text.trim().parse::<i64>() {
+        Ok(charge) if charge < 0 => Err(format!(
+            "{charge} is negative: {MEANING}; negative ions are not computed"
+        )),
+        Ok(charge) => u32::try_from(charge).map_err(|_| {
+            format!("{charge} is far more than any element's nuclear charge: {MEANING}")
+        }),
+        Err(_) => Err(format!("'{text}' is not a whole number: {MEANING}")),
+    }
+}
 
 /// Arguments of `termsight radial`.
 #[derive(Debug, Clone, clap::Args)]
@@ -37,7 +50,7 @@ pub struct RadialArgs {
     pub element: String,
     /// Charge of the ion: 0 for the neutral atom, 1 for Fe II, … [default: 0, or
     /// what a spectrum given to --element says].
-    #[arg(long)]
+    #[arg(long, value_parser = parse_charge, allow_hyphen_values = true)]
     pub charge: Option<u32>,
     /// A configuration, written `1s2 2s2 2p6 3s 3p` or `1s2.2s2.2p6.3s.3p`, with
     /// every electron of the ion. Repeat for more configurations; E_av differences
@@ -59,7 +72,9 @@ pub struct RadialArgs {
     /// Scale factor for E_av differences.
     #[arg(long, default_value_t = 1.0, value_name = "FACTOR")]
     pub scale_eav: f64,
-    /// Grid step h in ln(Z r) [default: 1/96].
+    /// Largest grid step h in ln(Z r); made finer for a Rydberg orbital, to
+    /// 0.12/(ζ n) for the orbital of largest n around an ion of charge ζ − 1
+    /// [default: 1/96].
     #[arg(long, value_name = "H")]
     pub grid_step: Option<f64>,
     /// Largest radius of the grid, bohr; raised when an orbital needs more
@@ -110,9 +125,15 @@ pub fn run(args: RadialArgs) -> Result<(), CliError> {
     }
     let mut progress = Progress::new(args.quiet);
     let report = compute(&request, &mut progress)?;
+    if let Some(note) = relativistic_note(request.species.atomic_number)
+        && !args.quiet
+    {
+        eprintln!("termsight radial: warning: {note}");
+    }
     let text = match args.format {
-        Format::Table => render_table(&report),
-        Format::Json => render_json(&report)?,
+        Format::Table => radial_table(&report),
+        Format::Json => radial_json(&report)
+            .map_err(|e| CliError::Message(format!("cannot write JSON: {e}")))?,
     };
     let mut stdout = io::stdout().lock();
     stdout
@@ -286,57 +307,6 @@ fn species(element_text: &str, charge: Option<u32>) -> Result<Species, CliError>
     }
 }
 
-/// One configuration's result.
-#[derive(Debug, Clone, Serialize)]
-pub struct ConfigurationReport {
-    /// The configuration label.
-    pub configuration: String,
-    /// E_av, hartree.
-    pub total_energy_hartree: f64,
-    /// −V/T.
-    pub virial_ratio: f64,
-    /// Iterations used.
-    pub iterations: u32,
-    /// Last residual (see [`ScfSolution::residual`]).
-    pub residual: f64,
-    /// The orbitals.
-    pub orbitals: Vec<OrbitalReport>,
-}
-
-/// One orbital's numbers.
-#[derive(Debug, Clone, Serialize)]
-pub struct OrbitalReport {
-    /// Label, e.g. `3p`.
-    pub orbital: String,
-    /// Electrons in it.
-    pub occupancy: u32,
-    /// Orbital energy, hartree.
-    pub energy_hartree: f64,
-    /// Orbital energy, cm⁻¹.
-    pub energy_cm1: f64,
-    /// ⟨r⟩, bohr.
-    pub mean_radius_bohr: f64,
-}
-
-/// Everything `termsight radial` prints.
-#[derive(Debug, Clone, Serialize)]
-pub struct RadialReport {
-    /// The spectrum, e.g. `Mg I`.
-    pub species: String,
-    /// Atomic number.
-    pub atomic_number: u32,
-    /// The method's name.
-    pub method: String,
-    /// Grid step h.
-    pub grid_step: f64,
-    /// The scale factors used.
-    pub scales: ScaleFactors,
-    /// Per configuration.
-    pub configurations: Vec<ConfigurationReport>,
-    /// The radial integrals.
-    pub integrals: Vec<RadialIntegral>,
-}
-
 /// Solve every configuration and gather the integrals.
 pub fn compute(request: &Request, observer: &mut Progress) -> Result<RadialReport, CliError> {
     let z = request.species.atomic_number;
@@ -351,45 +321,37 @@ pub fn compute(request: &Request, observer: &mut Progress) -> Result<RadialRepor
             }
             MethodChoice::Hydrogenic => screened_hydrogenic(z, configuration, request.options.grid),
         }
-        .map_err(|e| CliError::Message(format!("{} {configuration}: {e}", request.species)))?;
+        .map_err(|e| {
+            CliError::Message(format!(
+                "{} {configuration}: {e}{}",
+                request.species,
+                grid_option_hint(&e)
+            ))
+        })?;
         observer.finish(&solution);
         solutions.push(solution);
     }
     let integrals = radial_integrals(&solutions, &request.scales)
         .map_err(|e| CliError::Message(e.to_string()))?;
-    let configurations = solutions
-        .iter()
-        .map(|s| ConfigurationReport {
-            configuration: s.configuration.to_string(),
-            total_energy_hartree: s.energy.total_hartree,
-            virial_ratio: s.energy.virial_ratio(),
-            iterations: s.iterations,
-            residual: s.residual,
-            orbitals: s
-                .orbitals
-                .iter()
-                .map(|o| OrbitalReport {
-                    orbital: o.label(),
-                    occupancy: o.subshell.occupancy,
-                    energy_hartree: o.energy_hartree,
-                    energy_cm1: o.energy_hartree * HARTREE_CM1,
-                    mean_radius_bohr: mean_radius_bohr(&s.grid, &o.p),
-                })
-                .collect(),
-        })
-        .collect();
-    Ok(RadialReport {
-        species: request.species.to_string(),
-        atomic_number: z,
-        method: solutions
-            .first()
-            .map_or("", |s| s.method.name())
-            .to_string(),
-        grid_step: request.options.grid.step,
-        scales: request.scales,
-        configurations,
+    Ok(RadialReport::new(
+        request.species,
+        &solutions,
         integrals,
-    })
+        request.scales,
+        request.options.grid.step,
+    ))
+}
+
+/// The option to change when the grid cannot hold an orbital.
+fn grid_option_hint(error: &RadialError) -> &'static str {
+    match error {
+        RadialError::GridCannotHold { remedy, .. } => match remedy {
+            GridRemedy::SmallerStep => " (--grid-step)",
+            GridRemedy::LargerStep => " (--grid-step, --r-max)",
+            GridRemedy::LargerRadius => " (--r-max)",
+        },
+        _ => "",
+    }
 }
 
 /// Progress lines on stderr: nothing for runs shorter than half a second, then
@@ -452,116 +414,6 @@ impl ScfObserver for Progress {
         let _ = stderr.flush();
         self.printed = true;
     }
-}
-
-/// The report as terminal tables.
-pub fn render_table(report: &RadialReport) -> String {
-    let mut out = String::new();
-    out.push_str(&format!(
-        "{} (Z = {}): {}; grid step h = {:.6} in ln(Z r)\n",
-        report.species, report.atomic_number, report.method, report.grid_step
-    ));
-    for c in &report.configurations {
-        out.push_str(&format!(
-            "\n{}: E_av = {:.9} hartree, −V/T = {:.9}, {} iterations, last change {:.1e}\n",
-            c.configuration, c.total_energy_hartree, c.virial_ratio, c.iterations, c.residual
-        ));
-        let mut table = new_table(&[
-            "orbital",
-            "electrons",
-            "ε (hartree)",
-            "ε (cm⁻¹)",
-            "⟨r⟩ (bohr)",
-        ]);
-        for o in &c.orbitals {
-            table.add_row(vec![
-                Cell::new(&o.orbital),
-                right(o.occupancy.to_string()),
-                right(format!("{:.8}", o.energy_hartree)),
-                right(format!("{:.2}", o.energy_cm1)),
-                right(format!("{:.6}", o.mean_radius_bohr)),
-            ]);
-        }
-        out.push_str(&table.to_string());
-        out.push('\n');
-    }
-    out.push_str(&format!(
-        "\nRadial integrals, cm⁻¹ (r(a,b) in bohr). Scale factors: F^k and G^k {}, R^k {}, \
-         ζ {}, E_av differences {}.\n",
-        report.scales.direct_exchange,
-        report.scales.interaction,
-        report.scales.spin_orbit,
-        report.scales.average_energy
-    ));
-    let mut table = new_table(&["integral", "configuration", "value", "scale", "scaled"]);
-    for i in &report.integrals {
-        let label = |index: usize| {
-            report
-                .configurations
-                .get(index)
-                .map_or(String::new(), |c| c.configuration.clone())
-        };
-        let configurations = match i.other_configuration {
-            Some(other) => format!("{} – {}", label(i.configuration), label(other)),
-            None => label(i.configuration),
-        };
-        let digits = if matches!(i.kind, IntegralKind::Dipole { .. }) {
-            6
-        } else {
-            3
-        };
-        // Values too small for the fixed decimals (ζ of a Rydberg g orbital) in
-        // exponent form, so that they do not read as zero.
-        let number = |value: f64| {
-            if value != 0.0 && value.abs() < 0.1 {
-                format!("{value:.3e}")
-            } else {
-                format!("{value:.digits$}")
-            }
-        };
-        table.add_row(vec![
-            Cell::new(&i.name),
-            Cell::new(configurations),
-            right(number(i.value)),
-            right(format!("{}", i.scale)),
-            right(number(i.scaled)),
-        ]);
-    }
-    out.push_str(&table.to_string());
-    out.push('\n');
-    let has_zeta = report
-        .integrals
-        .iter()
-        .any(|i| matches!(i.kind, IntegralKind::SpinOrbit { .. }));
-    if has_zeta {
-        // Measured in radial::integrals (observed/computed ζ for thirteen spectra).
-        out.push_str(
-            "ζ is the central-field value without core polarisation: the observed ζ of a neutral\n\
-             atom's valence p electron is 1.3–1.6 times it (--scale-zeta), of ions and p⁵ shells\n\
-             about 1 times it.\n",
-        );
-    }
-    out
-}
-
-fn new_table(header: &[&str]) -> Table {
-    let mut table = Table::new();
-    table
-        .load_style(UTF8_BORDERS_ONLY)
-        .set_header(header.to_vec());
-    table
-}
-
-fn right(text: String) -> Cell {
-    Cell::new(text).set_alignment(CellAlignment::Right)
-}
-
-/// The report as one JSON document.
-pub fn render_json(report: &RadialReport) -> Result<String, CliError> {
-    let mut text = serde_json::to_string_pretty(report)
-        .map_err(|e| CliError::Message(format!("cannot write JSON: {e}")))?;
-    text.push('\n');
-    Ok(text)
 }
 
 #[cfg(test)]
@@ -682,10 +534,10 @@ mod tests {
         ]))
         .unwrap();
         let report = compute(&request, &mut Progress::new(true)).unwrap();
-        let table = render_table(&report);
+        let table = radial_table(&report);
         assert!(table.contains("He I (Z = 2)"));
         assert!(table.contains("G0(1s,2s)") && table.contains("P(2s,2p)"));
-        let json: serde_json::Value = serde_json::from_str(&render_json(&report).unwrap()).unwrap();
+        let json: serde_json::Value = serde_json::from_str(&radial_json(&report).unwrap()).unwrap();
         assert_eq!(json["configurations"][0]["configuration"], "1s.2s");
         assert_eq!(json["integrals"][1]["kind"], "exchange");
     }

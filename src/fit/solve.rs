@@ -90,6 +90,13 @@ struct Problem<'a> {
     reference: RefCell<Vec<Vec<f64>>>,
     iterations: Cell<usize>,
     evaluations: Cell<usize>,
+    /// The most evaluations allowed (`--max-evaluations`), counted over all passes.
+    limit: Option<usize>,
+    /// Set when an evaluation was refused because the limit was reached.
+    hit_limit: Cell<bool>,
+    /// The last accepted point and its evaluation: where a run stopped by the limit
+    /// ends (the minimiser's trial point after it is not a result).
+    accepted: RefCell<Option<(DVector<f64>, Evaluation)>>,
     progress: RefCell<&'a mut dyn FnMut(FitProgress)>,
 }
 
@@ -131,6 +138,7 @@ impl Problem<'_> {
     /// Mark the current point as accepted: its eigenvectors become the reference,
     /// and the progress callback hears of it.
     fn accept(&self, evaluation: &Evaluation) {
+        *self.accepted.borrow_mut() = Some((self.x.clone(), evaluation.clone()));
         *self.reference.borrow_mut() = (0..self.targets.len())
             .map(|t| evaluation.state(t).eigenvector.clone())
             .collect();
@@ -150,6 +158,16 @@ impl LeastSquaresProblem<f64, Dyn, Dyn> for Problem<'_> {
     type ParameterStorage = Owned<f64, Dyn>;
 
     fn set_params(&mut self, x: &DVector<f64>) {
+        // The limit holds: no evaluation beyond it. Without levels the residuals
+        // are `None` and the minimiser stops (see `fit_levels`).
+        if self
+            .limit
+            .is_some_and(|limit| self.evaluations.get() >= limit)
+        {
+            self.hit_limit.set(true);
+            self.current = None;
+            return;
+        }
         self.x.copy_from(x);
         self.current = self.evaluate(x.as_slice());
     }
@@ -334,6 +352,9 @@ pub fn fit_levels(
             current: Some(start),
             iterations: Cell::new(iterations),
             evaluations: Cell::new(evaluations),
+            limit: options.max_evaluations(),
+            hit_limit: Cell::new(false),
+            accepted: RefCell::new(None),
             progress: RefCell::new(&mut *progress),
         };
         let convergence = if p == 0 {
@@ -349,7 +370,17 @@ pub fn fit_levels(
             }
             let (solved, report) = lm.minimize(problem);
             problem = solved;
+            if problem.hit_limit.get()
+                && let Some((x, evaluation)) = problem.accepted.take()
+            {
+                // Back to the last accepted point, the best found.
+                problem.x = x;
+                problem.current = Some(evaluation);
+            }
             match report.termination {
+                TerminationReason::User(_) if problem.hit_limit.get() => {
+                    Convergence::StoppedAtLimit
+                }
                 TerminationReason::ResidualsZero
                 | TerminationReason::Orthogonal
                 | TerminationReason::Converged { .. }

@@ -153,6 +153,16 @@ impl RuleKey {
         self.parity != other.parity && ja.abs_diff(jb) <= 2 && !(ja == 0 && jb == 0)
     }
 
+    /// The rules [`RuleKey::classify`] applies, without the flags: LS when both
+    /// terms are LS.
+    pub(crate) fn rules(&self, other: &RuleKey) -> SelectionRules {
+        if self.ls.is_some() && other.ls.is_some() {
+            SelectionRules::Ls
+        } else {
+            SelectionRules::ParityAndJ
+        }
+    }
+
     /// [`classify`] on two keys.
     pub(crate) fn classify(&self, other: &RuleKey) -> (SelectionRules, TransitionFlags) {
         let jump = match (&self.occupancy, &other.occupancy) {

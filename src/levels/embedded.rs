@@ -16,6 +16,7 @@
 use std::collections::HashMap;
 
 use super::predicted::{AccuracyCode, PredictionError, Predictions, TransitionProbability};
+use super::reach::{ListReach, Reach};
 use super::ritz::{WavenumberRange, predict_levels};
 use super::table::{LevelTable, LevelTableError, read_level_table};
 use crate::location::Location;
@@ -346,19 +347,28 @@ impl EmbeddedTable {
     /// published transition probabilities.
     pub fn predictions(&self) -> Result<Predictions, CompiledError> {
         let table = self.load()?;
+        self.predictions_of(table, None)
+    }
+
+    /// [`EmbeddedTable::predictions`] from the table already loaded, keeping only the
+    /// lines within `keep` (all when `None`; see [`super::ListReach`]).
+    fn predictions_of(
+        &self,
+        table: LevelTable,
+        keep: Option<&Reach>,
+    ) -> Result<Predictions, CompiledError> {
         let rates = self.transition_rates()?;
         let warnings = table.warnings.len();
         let mut predictions = predict_levels(
             table.levels,
             &table.source,
             Some(compiled_range()),
+            keep,
             Some(&rates),
         )?;
         let listed = predictions
-            .lines()
-            .iter()
-            .filter(|l| l.listing == super::predicted::Listing::Listed)
-            .count();
+            .summary(self.spectrum())
+            .map_or(0, |s| s.listed_lines);
         if listed > 0 {
             predictions.add_note(
                 self.spectrum(),
@@ -409,6 +419,37 @@ pub fn compiled_predictions(tables: &[&EmbeddedTable]) -> Result<Predictions, Co
     let sets = tables
         .par_iter()
         .map(|t| t.predictions())
+        .collect::<Result<Vec<_>, _>>()?;
+    Ok(Predictions::combine(sets)?)
+}
+
+/// [`compiled_predictions`] keeping only the lines that the observed lines of
+/// `reach` can reach (see [`super::ListReach`]), when no other prediction matched
+/// beside these has a standard uncertainty above `other_uncertainty_cm1` (cm⁻¹).
+/// The matcher's results are the same as with every line kept; the summaries still
+/// count every line predicted.
+pub fn compiled_predictions_near(
+    tables: &[&EmbeddedTable],
+    reach: &ListReach,
+    other_uncertainty_cm1: f64,
+) -> Result<Predictions, CompiledError> {
+    use rayon::prelude::*;
+    let loaded = tables
+        .par_iter()
+        .map(|t| t.load().map(|table| (*t, table)))
+        .collect::<Result<Vec<_>, _>>()?;
+    // A Ritz line's uncertainty √(u₁² + u₂²) is at most √2 times the largest level
+    // uncertainty of its table.
+    let bound = loaded
+        .iter()
+        .flat_map(|(_, table)| table.levels.iter().map(|l| l.uncertainty_cm1))
+        .fold(other_uncertainty_cm1, |m, u| {
+            m.max(u * std::f64::consts::SQRT_2)
+        });
+    let keep = reach.with_prediction_uncertainty(bound);
+    let sets = loaded
+        .into_par_iter()
+        .map(|(t, table)| t.predictions_of(table, Some(&keep)))
         .collect::<Result<Vec<_>, _>>()?;
     Ok(Predictions::combine(sets)?)
 }

@@ -149,6 +149,43 @@ impl LevelLabel {
         out
     }
 
+    /// A warning when the label's LS term is not one the configuration can form
+    /// (`1s.2p 1D°`: s p gives only ¹P° and ³P°), by the microstate count of
+    /// [`super::formable`]; `None` when it can, or when that cannot be told (parent
+    /// terms in the configuration, a subshell beyond f, a term not in LS coupling).
+    /// Kept apart from [`LevelLabel::warnings`]: published tables keep such labels,
+    /// and the level is still a level.
+    pub fn unformable_term(&self) -> Option<LabelError> {
+        let term = self.term.as_ls()?;
+        if self.configuration.is_empty() {
+            return None;
+        }
+        if super::formable::can_form(&self.configuration, term)? {
+            return None;
+        }
+        let terms = super::formable::ls_terms(&self.configuration)?;
+        let parity = self.configuration.parity();
+        let names: Vec<String> = terms
+            .iter()
+            .map(|&(l, multiplicity)| {
+                format!(
+                    "{multiplicity}{}{}",
+                    crate::notation::term_letter(l),
+                    parity.mark()
+                )
+            })
+            .collect();
+        Some(LabelError {
+            part: "term",
+            problem: format!(
+                "configuration {} cannot form the term {}: its LS terms are {}",
+                self.configuration,
+                self.term,
+                names.join(", ")
+            ),
+        })
+    }
+
     /// True when the label names both a configuration and a coupled term, so that
     /// the one-electron jump rules (and, in LS coupling, the LS rules) can be judged.
     pub fn is_complete(&self) -> bool {

@@ -15,6 +15,8 @@
 //!   their levels, flags and the rules applied, from a table ([`predict_from_table`])
 //!   or, later, from a level model. The matcher ([`crate::assign`]) reads only these.
 //! - [`optimize`]: level energies from assigned lines by weighted least squares.
+//! - [`search`]: new levels from unassigned lines (candidate energies E_k ± σ, their
+//!   clusters, J values and chance probabilities).
 //!
 //! ```
 //! use termsight::levels::{EMBEDDED_TABLES, predict_from_table};
@@ -34,22 +36,27 @@
 pub(crate) mod csv_text;
 pub mod e1;
 mod embedded;
+mod formable;
 mod label;
 pub mod optimize;
 mod predicted;
+mod reach;
 mod ritz;
+pub mod search;
 mod table;
 
 pub use e1::{SelectionRules, TransitionFlags};
 pub use embedded::{
     COMPILED_RANGE_NM, CompiledError, EMBEDDED_TABLES, EmbeddedTable, RatesError,
-    compiled_predictions, compiled_range, embedded_stages, embedded_table,
+    compiled_predictions, compiled_predictions_near, compiled_range, embedded_stages,
+    embedded_table,
 };
 pub use label::{LabelError, LevelLabel};
 pub use predicted::{
     AccuracyCode, Listing, PredictedLine, PredictionError, Predictions, SpeciesOrigin,
-    SpeciesSummary, TransitionProbability,
+    SpeciesSummary, TransitionProbability, UnkeptLines,
 };
+pub use reach::{ListReach, Reach};
 pub use ritz::{WavenumberRange, predict_from_table, predict_lines, ritz_wavenumber};
 pub use table::{
     EnergyStatus, LEVEL_COLUMNS, Level, LevelTable, LevelTableError, MAX_LEVEL_TABLE_BYTES,

@@ -176,6 +176,9 @@ pub struct SpeciesSummary {
     /// Lines with a published transition probability.
     #[serde(default)]
     pub lines_with_transition_probability: usize,
+    /// Lines the source's line list gives ([`Listing::Listed`]).
+    #[serde(default)]
+    pub listed_lines: usize,
     /// What else the outputs should say about these predictions (levels with
     /// energies not from experiment or relative to an unknown offset, labels that
     /// were kept with warnings, a table that replaces a compiled one, …).
@@ -208,6 +211,49 @@ pub struct Predictions {
     levels: Vec<Level>,
     lines: Vec<PredictedLine>,
     species: Vec<SpeciesSummary>,
+    /// Lowest and highest wavenumber of every line predicted, cm⁻¹, including those
+    /// not kept because no observed line can reach them ([`Predictions::span_cm1`]).
+    #[serde(default)]
+    span_cm1: Option<(f64, f64)>,
+}
+
+/// Lines predicted but not kept in a [`Predictions`] set, per species: they lie
+/// beyond the reach of every observed line (no line can have them as candidates
+/// nor count them in its density window), so the matcher would never look at them.
+/// They still count in the species' summary, so the outputs describe the whole
+/// prediction.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub struct UnkeptLines {
+    /// Lines between two LS-labelled levels.
+    pub ls_lines: usize,
+    /// Lines with a label in another coupling.
+    pub parity_and_j_lines: usize,
+    /// Lines with a published transition probability.
+    pub with_transition_probability: usize,
+    /// Lines the source's line list gives.
+    pub listed: usize,
+}
+
+impl UnkeptLines {
+    /// Count one line that is not kept.
+    pub fn count(&mut self, line: &PredictedLine) {
+        self.count_parts(
+            line.rules,
+            line.transition_probability.is_some(),
+            line.listing == Listing::Listed,
+        );
+    }
+
+    /// Count one line from what the summary needs of it: its rules, whether it has a
+    /// published transition probability, whether its source lists it.
+    pub fn count_parts(&mut self, rules: SelectionRules, with_probability: bool, listed: bool) {
+        match rules {
+            SelectionRules::Ls => self.ls_lines += 1,
+            SelectionRules::ParityAndJ => self.parity_and_j_lines += 1,
+        }
+        self.with_transition_probability += usize::from(with_probability);
+        self.listed += usize::from(listed);
+    }
 }
 
 /// Lines and levels that do not make a valid [`Predictions`] set.
@@ -314,27 +360,36 @@ impl Predictions {
                 ls_lines: 0,
                 parity_and_j_lines: 0,
                 lines_with_transition_probability: 0,
+                listed_lines: 0,
                 notes: Vec::new(),
             });
         }
-        let position: std::collections::HashMap<Species, usize> = species
-            .iter()
-            .enumerate()
-            .map(|(i, s)| (s.species, i))
-            .collect();
+        // Which summary each level's species has: a short linear search per distinct
+        // species run (levels of one species are usually contiguous), not a hash per
+        // level and line.
+        let mut level_summary: Vec<usize> = Vec::with_capacity(levels.len());
+        let mut last: Option<(Species, usize)> = None;
         for level in &levels {
-            let summary = position
-                .get(&level.species)
-                .and_then(|&i| species.get_mut(i))
-                .ok_or_else(|| PredictionError::BadSpecies {
-                    species: level.species,
-                    problem: "it has levels but no origin".into(),
-                })?;
-            summary.levels += 1;
+            let index = match last {
+                Some((s, i)) if s == level.species => i,
+                _ => species
+                    .iter()
+                    .position(|s| s.species == level.species)
+                    .ok_or_else(|| PredictionError::BadSpecies {
+                        species: level.species,
+                        problem: "it has levels but no origin".into(),
+                    })?,
+            };
+            last = Some((level.species, index));
+            level_summary.push(index);
+            if let Some(summary) = species.get_mut(index) {
+                summary.levels += 1;
+            }
         }
         for line in &lines {
-            if let Some(summary) = position
-                .get(&line.species)
+            // The line's lower level is of its species (checked above).
+            if let Some(summary) = level_summary
+                .get(line.lower)
                 .and_then(|&i| species.get_mut(i))
             {
                 match line.rules {
@@ -344,15 +399,21 @@ impl Predictions {
                 if line.transition_probability.is_some() {
                     summary.lines_with_transition_probability += 1;
                 }
+                summary.listed_lines += usize::from(line.listing == Listing::Listed);
             }
         }
         if !lines.is_sorted_by(|a, b| a.wavenumber_cm1 <= b.wavenumber_cm1) {
-            lines.sort_by(|a, b| a.wavenumber_cm1.total_cmp(&b.wavenumber_cm1));
+            lines = sorted_by_wavenumber(lines);
         }
+        let span_cm1 = match (lines.first(), lines.last()) {
+            (Some(first), Some(last)) => Some((first.wavenumber_cm1, last.wavenumber_cm1)),
+            _ => None,
+        };
         Ok(Predictions {
             levels,
             lines,
             species,
+            span_cm1,
         })
     }
 
@@ -365,7 +426,30 @@ impl Predictions {
         let mut lines = Vec::new();
         let mut origins = Vec::new();
         let mut notes = Vec::new();
+        let mut unkept = Vec::new();
+        let mut span: Option<(f64, f64)> = None;
         for set in sets {
+            span = widest(span, set.span_cm1);
+            for s in &set.species {
+                let kept = set.lines.iter().filter(|l| l.species == s.species);
+                let mut in_set = UnkeptLines::default();
+                for line in kept {
+                    in_set.count(line);
+                }
+                unkept.push((
+                    s.species,
+                    UnkeptLines {
+                        ls_lines: s.ls_lines.saturating_sub(in_set.ls_lines),
+                        parity_and_j_lines: s
+                            .parity_and_j_lines
+                            .saturating_sub(in_set.parity_and_j_lines),
+                        with_transition_probability: s
+                            .lines_with_transition_probability
+                            .saturating_sub(in_set.with_transition_probability),
+                        listed: s.listed_lines.saturating_sub(in_set.listed),
+                    },
+                ));
+            }
             let offset = levels.len();
             levels.extend(set.levels);
             lines.extend(set.lines.into_iter().map(|line| PredictedLine {
@@ -383,12 +467,41 @@ impl Predictions {
             }
         }
         let mut combined = Predictions::new(levels, lines, origins)?;
+        combined.span_cm1 = widest(combined.span_cm1, span);
         for (species, notes) in notes {
             for note in notes {
                 combined.add_note(species, note);
             }
         }
+        for (species, counts) in unkept {
+            combined.add_unkept(species, counts);
+        }
         Ok(combined)
+    }
+
+    /// Count lines that were predicted for `species` but not kept (see
+    /// [`UnkeptLines`]) in its summary.
+    pub fn add_unkept(&mut self, species: Species, counts: UnkeptLines) {
+        if let Some(summary) = self.species.iter_mut().find(|s| s.species == species) {
+            summary.ls_lines += counts.ls_lines;
+            summary.parity_and_j_lines += counts.parity_and_j_lines;
+            summary.lines_with_transition_probability += counts.with_transition_probability;
+            summary.listed_lines += counts.listed;
+        }
+    }
+
+    /// Widen the recorded span of predicted wavenumbers to include `low..=high`
+    /// (cm⁻¹), for lines predicted but not kept.
+    pub fn widen_span(&mut self, low_cm1: f64, high_cm1: f64) {
+        self.span_cm1 = widest(self.span_cm1, Some((low_cm1, high_cm1)));
+    }
+
+    /// Lowest and highest wavenumber of every line predicted, cm⁻¹, those not kept
+    /// included (`None` for a set without lines). The chance probabilities cut their
+    /// counting windows at this span (see [`crate::assign`]), so keeping only the
+    /// lines within reach of a list changes no result.
+    pub fn span_cm1(&self) -> Option<(f64, f64)> {
+        self.span_cm1
     }
 
     /// Add a note for the outputs to the summary of `species` (nothing when the set
@@ -429,5 +542,32 @@ impl Predictions {
     /// another set with indices out of range).
     pub fn levels_of(&self, line: &PredictedLine) -> Option<(&Level, &Level)> {
         Some((self.levels.get(line.lower)?, self.levels.get(line.upper)?))
+    }
+}
+
+/// `lines` in increasing wavenumber, equal wavenumbers in the given order (a stable
+/// sort). The sort moves 16-byte keys and then gathers the lines once, rather than
+/// moving the ~100-byte lines through every pass of a merge sort.
+fn sorted_by_wavenumber(lines: Vec<PredictedLine>) -> Vec<PredictedLine> {
+    let mut order: Vec<(f64, usize)> = lines
+        .iter()
+        .enumerate()
+        .map(|(i, line)| (line.wavenumber_cm1, i))
+        .collect();
+    // Stable, and quick on the sorted runs that joined sets are made of.
+    order.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let mut slots: Vec<Option<PredictedLine>> = lines.into_iter().map(Some).collect();
+    order
+        .into_iter()
+        .filter_map(|(_, i)| slots.get_mut(i).and_then(Option::take))
+        .collect()
+}
+
+/// The smallest range holding both spans.
+fn widest(a: Option<(f64, f64)>, b: Option<(f64, f64)>) -> Option<(f64, f64)> {
+    match (a, b) {
+        (Some(a), Some(b)) => Some((a.0.min(b.0), a.1.max(b.1))),
+        (a, None) => a,
+        (None, b) => b,
     }
 }

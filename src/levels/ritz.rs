@@ -6,7 +6,9 @@ use std::collections::HashMap;
 use super::e1::RuleKey;
 use super::predicted::{
     Listing, PredictedLine, PredictionError, Predictions, SpeciesOrigin, TransitionProbability,
+    UnkeptLines,
 };
+use super::reach::Reach;
 use super::table::{Level, LevelTable};
 use crate::notation::Species;
 
@@ -52,7 +54,7 @@ pub struct WavenumberRange {
 /// Fails only for a table built by hand with non-finite numbers (a table read by
 /// [`super::read_level_table`] always gives a valid set).
 pub fn predict_from_table(table: &LevelTable) -> Result<Predictions, PredictionError> {
-    predict_levels(table.levels.clone(), &table.source, None, None)
+    predict_levels(table.levels.clone(), &table.source, None, None, None)
 }
 
 /// [`predict_from_table`], keeping only the lines within `range` (all when `None`),
@@ -69,14 +71,23 @@ pub fn predict_lines(
     range: Option<WavenumberRange>,
     published: &HashMap<(usize, usize), Option<TransitionProbability>>,
 ) -> Result<Predictions, PredictionError> {
-    predict_levels(table.levels.clone(), &table.source, range, Some(published))
+    predict_levels(
+        table.levels.clone(),
+        &table.source,
+        range,
+        None,
+        Some(published),
+    )
 }
 
-/// [`predict_lines`] on levels owned by the caller (no copy), `source` naming them.
+/// [`predict_lines`] on levels owned by the caller (no copy), `source` naming them;
+/// lines within `range` but outside `keep` (when given) are counted in the species'
+/// summary and span but not kept (see [`super::ListReach`]).
 pub(crate) fn predict_levels(
     levels: Vec<Level>,
     source: &str,
     range: Option<WavenumberRange>,
+    keep: Option<&Reach>,
     published: Option<&HashMap<(usize, usize), Option<TransitionProbability>>>,
 ) -> Result<Predictions, PredictionError> {
     let mut species_list: Vec<Species> = Vec::new();
@@ -97,7 +108,10 @@ pub(crate) fn predict_levels(
     let complete: Vec<bool> = levels.iter().map(|l| l.label.is_complete()).collect();
     let mut lines = Vec::new();
     let mut counts: Vec<(Species, NoteCounts)> = Vec::new();
+    let mut unkept: Vec<(Species, UnkeptLines)> = Vec::new();
+    let mut unkept_span: Option<(f64, f64)> = None;
     for &species in &species_list {
+        let mut not_kept = UnkeptLines::default();
         let indices: Vec<usize> = (0..levels.len())
             .filter(|&i| levels.get(i).is_some_and(|l| l.species == species))
             .collect();
@@ -132,22 +146,34 @@ pub(crate) fn predict_levels(
                 if range.is_some_and(|r| !(r.low_cm1..=r.high_cm1).contains(&wavenumber_cm1)) {
                     continue;
                 }
-                let (_, uncertainty_cm1) = ritz_wavenumber(lower_level, upper_level);
-                let (rules, flags) = key_a.classify(key_b);
                 let listed = partners
                     .get(i)
                     .and_then(|list| list.iter().find(|(partner, _)| *partner == k));
-                let transition_probability =
-                    listed.and_then(|(_, r)| *r).map(|r| TransitionProbability {
-                        g_upper: upper_level.label.j.multiplicity(),
-                        ..r
-                    });
                 if !(complete.get(i).copied().unwrap_or(false)
                     && complete.get(k).copied().unwrap_or(false))
                 {
                     count.incomplete += 1;
                 }
-                lines.push(PredictedLine {
+                if keep.is_some_and(|reach| !reach.contains(wavenumber_cm1)) {
+                    // Counted, not built: no observed line can reach it.
+                    not_kept.count_parts(
+                        key_a.rules(key_b),
+                        listed.is_some_and(|(_, r)| r.is_some()),
+                        listed.is_some(),
+                    );
+                    unkept_span = Some(unkept_span.map_or((wavenumber_cm1, wavenumber_cm1), |s| {
+                        (s.0.min(wavenumber_cm1), s.1.max(wavenumber_cm1))
+                    }));
+                    continue;
+                }
+                let (_, uncertainty_cm1) = ritz_wavenumber(lower_level, upper_level);
+                let (rules, flags) = key_a.classify(key_b);
+                let transition_probability =
+                    listed.and_then(|(_, r)| *r).map(|r| TransitionProbability {
+                        g_upper: upper_level.label.j.multiplicity(),
+                        ..r
+                    });
+                let line = PredictedLine {
                     species,
                     lower,
                     upper,
@@ -164,10 +190,12 @@ pub(crate) fn predict_levels(
                         (Some(_), Some(_)) => Listing::Listed,
                         (Some(_), None) => Listing::NotListed,
                     },
-                });
+                };
+                lines.push(line);
             }
         }
         counts.push((species, count));
+        unkept.push((species, not_kept));
     }
     let origins = species_list
         .into_iter()
@@ -182,6 +210,12 @@ pub(crate) fn predict_levels(
         for note in count.notes() {
             predictions.add_note(species, note);
         }
+    }
+    for (species, not_kept) in unkept {
+        predictions.add_unkept(species, not_kept);
+    }
+    if let Some((low, high)) = unkept_span {
+        predictions.widen_span(low, high);
     }
     Ok(predictions)
 }

@@ -1,6 +1,5 @@
 //! Level tables: reading `species,configuration,term,J,energy_cm1,uncertainty_cm1,source`.
 
-use std::collections::HashMap;
 use std::io::BufRead;
 
 use serde::{Deserialize, Serialize};
@@ -262,7 +261,10 @@ pub fn read_level_table(
 
     let mut levels = Vec::new();
     let mut warnings = Vec::new();
-    let mut first_seen: HashMap<(Species, LevelLabel), usize> = HashMap::new();
+    // FxHash: the labels are the table's own, not adversarial keys, and SipHash was a
+    // quarter of the start-up time of `assign` with every compiled table.
+    let mut first_seen: rustc_hash::FxHashMap<(Species, LevelLabel), usize> =
+        rustc_hash::FxHashMap::default();
     for record in records {
         let (line, record) = record.map_err(error)?;
         let level = read_row(&record, &columns, source, line, &mut warnings)?;
@@ -346,7 +348,7 @@ fn read_row(
         .map_err(|e| bad("species", format!("{e}")))?;
     let label = LevelLabel::from_fields(field(1), field(2), field(3))
         .map_err(|e| bad(e.part, e.problem))?;
-    for warning in label.warnings() {
+    for warning in label.warnings().into_iter().chain(label.unformable_term()) {
         warnings.push(TableWarning {
             location: Location::line(source, line).column(warning.part),
             problem: format!("{}; the level is kept", warning.problem),

@@ -196,6 +196,16 @@ pub enum LineProblem {
     },
     /// Neither the row nor the options give an uncertainty.
     NoUncertainty,
+    /// The uncertainty is as large as the position itself: the line could be
+    /// anywhere from zero to twice its wavenumber.
+    UncertaintyTooLarge {
+        /// The uncertainty as given (shortened if long).
+        text: String,
+        /// It in cm⁻¹.
+        uncertainty_cm1: f64,
+        /// The line's vacuum wavenumber, cm⁻¹.
+        wavenumber_cm1: f64,
+    },
 }
 
 impl fmt::Display for LineProblem {
@@ -235,6 +245,15 @@ impl fmt::Display for LineProblem {
             LineProblem::AirOutOfRange { lambda_nm } => write!(
                 f,
                 "an air wavelength of {lambda_nm} nm is shorter than {AIR_FORMULA_MIN_NM} nm, where the air formulas end; give it as a vacuum wavelength"
+            ),
+            LineProblem::UncertaintyTooLarge {
+                text,
+                uncertainty_cm1,
+                wavenumber_cm1,
+            } => write!(
+                f,
+                "the uncertainty '{text}' ({uncertainty_cm1:.4e} cm-1) is not smaller than the \
+                 line's own wavenumber ({wavenumber_cm1:.4e} cm-1): check its unit and column"
             ),
             LineProblem::NoUncertainty => write!(
                 f,

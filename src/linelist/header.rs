@@ -163,6 +163,9 @@ fn classify(lower: &str) -> Result<Role, &'static str> {
     match (lower, quantity_and_unit) {
         ("medium", _) => Ok(Role::Medium),
         ("intensity", _) => Ok(Role::Intensity),
+        // The intensity's uncertainty, read by `assign` from the extra columns (same
+        // unit as the intensity); not a position uncertainty.
+        ("uncertainty_intensity", _) => Ok(Role::Extra),
         ("wavelength", _) => Err(POSITION_COLUMNS),
         ("wavenumber", _) => Err(POSITION_COLUMNS),
         ("uncertainty", _) => Err(UNCERTAINTY_COLUMNS),
@@ -221,6 +224,7 @@ mod tests {
             ("intensity", Role::Intensity),
             ("note", Role::Extra),
             ("intensity_ratio", Role::Extra),
+            ("uncertainty_intensity", Role::Extra),
         ];
         for (name, role) in cases {
             assert_eq!(classify(name), Ok(role), "{name}");

@@ -90,6 +90,17 @@ pub(crate) fn convert_row(
             not_convertible(position_text, "vacuum wavenumber"),
         ));
     }
+    // Its square must be an ordinary number too, since a wavelength uncertainty is
+    // turned into a wavenumber one by σ²: a wavelength of 1e300 nm is the position's
+    // fault, not the uncertainty's.
+    if !(wavenumber_cm1 * wavenumber_cm1).is_normal()
+        || !(1.0 / (wavenumber_cm1 * wavenumber_cm1)).is_normal()
+    {
+        return Err((
+            Some(position_column),
+            not_convertible(position_text, "vacuum wavenumber's square"),
+        ));
+    }
 
     let uncertainty_cell = layout
         .uncertainty
@@ -130,6 +141,20 @@ pub(crate) fn convert_row(
             "wavenumber uncertainty"
         };
         return Err((uncertainty_column, not_convertible(&text, what)));
+    }
+    if uncertainty_cm1 >= wavenumber_cm1 {
+        let text = match uncertainty_column {
+            Some(column) => fields.get(column).to_string(),
+            None => format!("--uncertainty {uncertainty}{uncertainty_unit}"),
+        };
+        return Err((
+            uncertainty_column,
+            LineProblem::UncertaintyTooLarge {
+                text: shorten(&text),
+                uncertainty_cm1,
+                wavenumber_cm1,
+            },
+        ));
     }
 
     let intensity = match layout.intensity {

@@ -737,7 +737,7 @@ fn skip_bad_with_nothing_good_left_is_an_error() {
 #[test]
 fn the_error_type_carries_a_structured_location() {
     let error = read_with(
-        "wavenumber_cm1,uncertainty_cm1\n1,1\n2,x\n",
+        "wavenumber_cm1,uncertainty_cm1\n10,1\n20,x\n",
         &ReadOptions::default(),
     )
     .unwrap_err();
@@ -757,7 +757,8 @@ fn the_error_type_carries_a_structured_location() {
 // --- no panic on any input --------------------------------------------------------------
 
 proptest! {
-    #![proptest_config(ProptestConfig { cases: 512, ..ProptestConfig::default() })]
+    // Fixed seed: the same cases in every run (DEVELOPERS.md, "Randomness is seeded").
+    #![proptest_config(ProptestConfig { cases: 512, rng_seed: proptest::test_runner::RngSeed::Fixed(13), ..ProptestConfig::default() })]
 
     #[test]
     fn no_byte_string_makes_the_reader_panic(bytes in prop::collection::vec(any::<u8>(), 0..400),

@@ -28,7 +28,8 @@ pub struct NotationError {
     pub problem: String,
 }
 
-const EXPECT_J: &str = "expected a non-negative integer or an odd number over 2, as in 0, 2 or 3/2";
+const EXPECT_J: &str =
+    "expected a non-negative integer or an odd number over 2, at most 1000, as in 0, 2 or 3/2";
 const EXPECT_TERM: &str = "expected an LS term such as 3P, 1D°, 2D#2 or a 5D, a pair-coupling term \
      such as 2[3/2]°, a jj term such as (3/2,1/2)°, a parity alone (°), or a level number such as \
      62192e; odd parity may be written °, * or o, and ? marks an uncertain term";
@@ -41,16 +42,22 @@ fn number(input: &str) -> IResult<&str, u32> {
     map_res(digit1, str::parse::<u32>).parse(input)
 }
 
+/// The largest half-integer read, 1000: far above any J, S or K of an atomic
+/// level, and small enough that 2J + 1 and sums of a few J never overflow (a
+/// larger number is an error, not a wrapped value).
+const MAX_HALF_INT: u32 = 1000;
+
 fn half_int(input: &str) -> IResult<&str, HalfInt> {
     let (rest, numerator) = number(input)?;
     let (rest, halves) = opt(tag("/2")).parse(rest)?;
+    let verify = || nom::Err::Error(nom::error::Error::new(input, nom::error::ErrorKind::Verify));
     match halves {
-        Some(_) if numerator % 2 == 1 => Ok((rest, HalfInt::from_twice(numerator))),
-        Some(_) => Err(nom::Err::Error(nom::error::Error::new(
-            input,
-            nom::error::ErrorKind::Verify,
-        ))),
-        None => Ok((rest, HalfInt::from_int(numerator))),
+        Some(_) if numerator % 2 == 1 && numerator <= 2 * MAX_HALF_INT => {
+            Ok((rest, HalfInt::from_twice(numerator)))
+        }
+        Some(_) => Err(verify()),
+        None if numerator <= MAX_HALF_INT => Ok((rest, HalfInt::from_int(numerator))),
+        None => Err(verify()),
     }
 }
 
@@ -719,6 +726,24 @@ mod tests {
         }
         let e = "3P°x".parse::<Term>().unwrap_err();
         assert!(e.to_string().contains("unexpected 'x'"), "{e}");
+    }
+
+    #[test]
+    fn a_j_too_large_is_an_error_not_a_wrapped_number() {
+        // Found by the fuzz target `notation` (tests/fuzz/reproducers/notation/):
+        // J = 2333333333 overflowed 2J in u32 (a panic with overflow checks, a wrong
+        // J without). Every J of an atomic level is far below the bound of 1000
+        // (common practice, no source).
+        for bad in ["2333333333", "4294967295/2", "1001", "2001/2"] {
+            let e = bad.parse::<HalfInt>().unwrap_err();
+            assert!(e.to_string().contains("at most 1000"), "{bad}: {e}");
+            assert!(format!("2[{bad}]°").parse::<Term>().is_err(), "{bad}");
+        }
+        assert_eq!("1000".parse::<HalfInt>().unwrap(), HalfInt::from_int(1000));
+        assert_eq!(
+            "1999/2".parse::<HalfInt>().unwrap(),
+            HalfInt::from_twice(1999)
+        );
     }
 
     fn any_parity() -> impl Strategy<Value = Parity> {

@@ -27,7 +27,7 @@ use super::grid::RadialGrid;
 use super::numerov::{ShootingOptions, solve_bound_state};
 use super::scf::{
     Method, Orbital, ScfObserver, ScfOptions, ScfProgress, ScfSolution, ScfStage,
-    checked_subshells, screened_hydrogenic,
+    check_orbitals_fit, checked_subshells, screened_hydrogenic,
 };
 use super::slater::yk_function;
 
@@ -86,6 +86,7 @@ pub fn local_exchange(
         true,
         observer,
     )?;
+    check_orbitals_fit(&start.grid, &orbitals)?;
     let expression = AverageEnergyExpression::new(&subshells);
     let p: Vec<&[f64]> = orbitals.iter().map(|o| o.p.as_slice()).collect();
     let energy = average_energy(&start.grid, nuclear_charge as f64, &expression, &p);

@@ -70,6 +70,27 @@ pub use scf::{
 };
 pub use term::PairSpin;
 
+/// Which grid setting to change when the grid cannot hold an orbital.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum GridRemedy {
+    /// A smaller step h ([`GridSpec::step`]).
+    SmallerStep,
+    /// A larger step h or a smaller largest radius: the grid has too many points.
+    LargerStep,
+    /// A larger largest radius ([`GridSpec::r_max_bohr`]).
+    LargerRadius,
+}
+
+impl std::fmt::Display for GridRemedy {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(match self {
+            GridRemedy::SmallerStep => "use a smaller grid step",
+            GridRemedy::LargerStep => "use a larger grid step or a smaller largest radius",
+            GridRemedy::LargerRadius => "use a larger largest radius",
+        })
+    }
+}
+
 /// Errors of the radial solver.
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 #[non_exhaustive]
@@ -129,6 +150,16 @@ pub enum RadialError {
     LevelModel {
         /// What is wrong.
         problem: String,
+    },
+    /// The grid cannot hold an orbital: it is too short or too coarse for it.
+    #[error("orbital {orbital}: the radial grid cannot hold it: {problem}; {remedy}")]
+    GridCannotHold {
+        /// The orbital label.
+        orbital: String,
+        /// What went wrong.
+        problem: String,
+        /// Which setting to change.
+        remedy: GridRemedy,
     },
     /// An orbital came out unbound (ε ≥ 0).
     #[error("orbital {orbital} is not bound (ε = {energy_hartree:.6} hartree)")]

@@ -20,7 +20,7 @@ struct Column {
 /// it is written (numbers to the digits they carry, see [`super::digits`]). Their
 /// names are [`crate::assign::ASSIGN_COLUMNS`], which the reader knows; a test checks that the two
 /// lists agree.
-const COLUMNS: [Column; 28] = [
+const COLUMNS: [Column; 32] = [
     Column {
         name: "line",
         write: |r, out| push_integer(out, r.observed.row),
@@ -168,7 +168,43 @@ const COLUMNS: [Column; 28] = [
             }
         },
     },
+    Column {
+        name: "observed_to_predicted_intensity",
+        write: |r, out| {
+            if let Some(v) = evidence(r).and_then(|e| e.observed_to_predicted_intensity) {
+                push_uncertainty(out, v);
+            }
+        },
+    },
+    Column {
+        name: "predicted_relative_intensity",
+        write: |r, out| {
+            if let Some(v) = evidence(r).and_then(|e| e.predicted_relative_intensity) {
+                push_uncertainty(out, v);
+            }
+        },
+    },
+    Column {
+        name: "log_likelihood",
+        write: |r, out| {
+            if let Some(e) = evidence(r) {
+                push_fixed(out, e.log_likelihood, 3);
+            }
+        },
+    },
+    Column {
+        name: "species_verdict",
+        write: |r, out| {
+            if let Some(e) = evidence(r) {
+                out.extend_from_slice(e.species_verdict.name().as_bytes());
+            }
+        },
+    },
 ];
+
+fn evidence<'a>(r: &Row<'a>) -> Option<&'a crate::assign::CandidateEvidence> {
+    r.candidate.and_then(|c| c.candidate.evidence.as_ref())
+}
 
 type CandidateRow<'a> = super::assign_rows::CandidateRow<'a>;
 
@@ -233,6 +269,7 @@ pub fn write_assign_csv<W: Write + ?Sized>(
     out: &mut W,
 ) -> io::Result<()> {
     let mut head = Vec::new();
+    // The species summary is part of the description (its last lines).
     for line in report.description() {
         head.extend_from_slice(b"# ");
         head.extend_from_slice(line.as_bytes());

@@ -17,6 +17,18 @@ struct Head<'a> {
     matching: Matching,
     species: Vec<SpeciesJson<'a>>,
     counts: AssignCounts,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    evidence: Option<EvidenceJson<'a>>,
+}
+
+#[derive(Serialize)]
+struct EvidenceJson<'a> {
+    intensity_units: &'static str,
+    resolution: &'static str,
+    rounds: usize,
+    converged: bool,
+    lines_with_intensity: usize,
+    species: &'a [crate::assign::SpeciesEvidence],
 }
 
 #[derive(Serialize)]
@@ -94,6 +106,16 @@ struct CandidateJson<'a> {
     chance_probability: Uncertainty,
     selection_rules: &'static str,
     flags: Vec<&'static str>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    observed_to_predicted_intensity: Option<Option<Uncertainty>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    predicted_relative_intensity: Option<Option<Uncertainty>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    log_likelihood: Option<Fixed>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    species_verdict: Option<&'static str>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    per_line_rank: Option<usize>,
 }
 
 fn wavenumber(value: f64) -> Fixed {
@@ -130,6 +152,17 @@ fn candidate<'a>(row: &Row<'a>) -> Option<CandidateJson<'a>> {
         chance_probability: Uncertainty(c.candidate.chance_probability),
         selection_rules: c.line.rules.name(),
         flags: row.flags().map(|f| f.name()).collect(),
+        observed_to_predicted_intensity: c
+            .candidate
+            .evidence
+            .map(|e| e.observed_to_predicted_intensity.map(Uncertainty)),
+        predicted_relative_intensity: c
+            .candidate
+            .evidence
+            .map(|e| e.predicted_relative_intensity.map(Uncertainty)),
+        log_likelihood: c.candidate.evidence.map(|e| Fixed(e.log_likelihood, 3)),
+        species_verdict: c.candidate.evidence.map(|e| e.species_verdict.name()),
+        per_line_rank: c.candidate.evidence.map(|e| e.per_line_rank),
     })
 }
 
@@ -201,6 +234,17 @@ pub fn write_assign_json<W: Write + ?Sized>(
             })
             .collect(),
         counts: report.counts(),
+        evidence: report.evidence.map(|e| EvidenceJson {
+            intensity_units: e.config.units.name(),
+            resolution: match e.config.resolution {
+                crate::assign::Resolution::Joint => "joint",
+                crate::assign::Resolution::PerLine => "per-line",
+            },
+            rounds: e.rounds,
+            converged: e.converged,
+            lines_with_intensity: e.lines_with_intensity,
+            species: e.species,
+        }),
     };
     let mut text = serde_json::to_vec_pretty(&head).map_err(io::Error::other)?;
     // Open the head object again for the lines: drop its closing "\n}".

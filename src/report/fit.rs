@@ -35,6 +35,26 @@ pub struct FitReport<'a> {
     pub simple_picture: Option<&'a SimplePicture>,
 }
 
+/// The fitted model as TOML (`fit --model-out`): a comment naming the levels fitted
+/// to, the size of the fit and its σ, then the model with the standard errors as
+/// uncertainties.
+pub fn fitted_model_toml(report: &FitReport<'_>) -> String {
+    let result = report.result;
+    let mut toml = format!(
+        "# Fitted by termsight fit to {} ({} levels, {} free parameters, {} degrees of \
+         freedom{}).\n# Uncertainties are standard errors of the fit.\n",
+        report.levels_source,
+        result.levels.len(),
+        result.free_parameters,
+        result.degrees_of_freedom,
+        result
+            .sigma_cm1
+            .map_or_else(String::new, |s| format!(", σ = {s:.6} cm⁻¹"))
+    );
+    toml.push_str(&crate::structure::model::write_model(report.model));
+    toml
+}
+
 impl FitReport<'_> {
     fn hydrogenic(&self, id: &ParameterId) -> Option<f64> {
         self.simple_picture?
@@ -137,9 +157,10 @@ fn summary(report: &FitReport<'_>) -> String {
         ),
         Convergence::StoppedAtLimit => writeln!(
             text,
-            "WARNING: stopped at the limit of {} evaluations before converging; the values \
-             are the best found.",
-            r.evaluations
+            "WARNING: stopped at the evaluation limit ({} evaluations of the levels after {} \
+             iterations) before converging: not a converged fit; the values are the best \
+             found. Allow more with --max-evaluations.",
+            r.evaluations, r.iterations
         ),
         Convergence::NothingToFit => {
             writeln!(

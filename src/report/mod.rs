@@ -15,8 +15,12 @@
 //!
 //! For `termsight lines`, a [`LinesReport`] holds the selected lines of a level
 //! model; [`lines_table`], [`lines_csv`] and [`lines_json`] write it.
+//! For `termsight levels`, [`level_rows`] turns computed levels into rows that
+//! [`levels_table`], [`levels_csv`] and [`levels_json`] write.
 //! For `termsight fit`, a [`FitReport`] wraps a [`crate::fit::FitResult`] with its
 //! sources; [`fit_table`] and [`fit_json`] write it.
+//! For `termsight radial`, a [`RadialReport`] holds the orbitals and integrals of
+//! the configurations; [`radial_table`] and [`radial_json`] write it.
 
 mod assign_csv;
 mod assign_json;
@@ -25,14 +29,19 @@ mod assign_table;
 mod compiled;
 mod csv_document;
 pub mod digits;
+pub mod figures;
 mod fit;
+mod html;
+mod level_search;
+mod levels;
 mod model_lines;
 mod optimize;
 mod plasma;
+mod radial;
 
 use serde::Serialize;
 
-use crate::assign::{LineAssignment, MatchConfig};
+use crate::assign::{EvidenceConfig, LineAssignment, MatchConfig, SpeciesEvidence, Verdict};
 use crate::levels::{Predictions, SpeciesSummary};
 use crate::linelist::{GivenPosition, LineList};
 use crate::units::{AirFormula, Medium};
@@ -41,14 +50,23 @@ pub use assign_csv::{assign_csv, write_assign_csv};
 pub use assign_json::{assign_json, write_assign_json};
 pub use assign_table::{TableOptions, assign_table, write_assign_table};
 pub use compiled::{CompiledSpectrum, compiled_spectra_table};
-pub use fit::{FitReport, fit_json, fit_table};
+pub use fit::{FitReport, fit_json, fit_table, fitted_model_toml};
+pub use html::{AnalysisPage, MAX_TABLE_ROWS, PageFigure, analysis_html};
+pub use level_search::{
+    LevelSearchReport, candidate_term, level_search_csv, level_search_json, level_search_table,
+};
+pub use levels::{ComponentRow, LevelRow, level_rows, levels_csv, levels_json, levels_table};
 pub use model_lines::{
     DipoleValue, LINE_COLUMNS, LineRow, LineSelection, LinesReport, lines_csv, lines_json,
     lines_table,
 };
 pub use optimize::{
-    OPTIMIZED_LEVEL_EXTRA_COLUMNS, OPTIMIZED_LINE_COLUMNS, OptimizeContext, optimize_description,
-    optimize_json, optimize_table, optimized_levels_csv, optimized_lines_csv,
+    OPTIMIZED_LEVEL_EXTRA_COLUMNS, OPTIMIZED_LINE_COLUMNS, OptimizeContext, blend_loss_text,
+    optimize_description, optimize_json, optimize_table, optimized_levels_csv, optimized_lines_csv,
+};
+pub use radial::{
+    ConfigurationReport, NONRELATIVISTIC_LIMIT_Z, OrbitalReport, RadialReport, radial_json,
+    radial_table, relativistic_note,
 };
 pub use plasma::{
     PLASMA_COLUMNS, PLASMA_POINT_COLUMNS, plasma_csv, plasma_json, plasma_points_csv, plasma_table,
@@ -173,6 +191,84 @@ pub struct AssignReport<'a> {
     /// The result of [`crate::assign::assign_lines`] for `list.lines` and
     /// `predictions`: one per line, in the order of the lines.
     pub assignments: &'a [LineAssignment],
+    /// What the intensity-aware assignment found, `None` for the position-only
+    /// ranking.
+    pub evidence: Option<EvidenceView<'a>>,
+}
+
+/// The species summary and settings of an intensity-aware assignment.
+#[derive(Debug, Clone, Copy)]
+pub struct EvidenceView<'a> {
+    /// The settings.
+    pub config: &'a EvidenceConfig,
+    /// One per species.
+    pub species: &'a [SpeciesEvidence],
+    /// Rounds run.
+    pub rounds: usize,
+    /// Whether the rounds reached a fixed point.
+    pub converged: bool,
+    /// Observed lines with a usable intensity.
+    pub lines_with_intensity: usize,
+}
+
+impl EvidenceView<'_> {
+    /// Species shown in the summary: those with an assigned line or not absent,
+    /// then the rest counted in one line.
+    pub fn summary_lines(&self) -> Vec<String> {
+        let mut lines = vec![
+            "Species (present / absent / undecided; lines assigned at rank 1; expected              above the detection limit: seen / missing; T_exc; fraction of the observed              intensity explained):"
+                .to_string(),
+        ];
+        let mut absent_quiet = Vec::new();
+        for s in self.species {
+            if s.lines_assigned == 0 && s.verdict == Verdict::Absent {
+                absent_quiet.push(s.species.to_string());
+                continue;
+            }
+            let temperature = match s.temperature_sigma_k {
+                Some(sigma) => format!(
+                    "T_exc = {:.0} ± {:.0} K (Boltzmann plot, {} lines)",
+                    s.temperature_k,
+                    sigma,
+                    s.boltzmann.as_ref().map_or(0, |b| b.used_points())
+                ),
+                None => format!(
+                    "T_exc = {:.0} K ({}{})",
+                    s.temperature_k,
+                    s.temperature_source.name(),
+                    s.temperature_note
+                        .as_ref()
+                        .map(|n| format!(": no plot, {n}"))
+                        .unwrap_or_default()
+                ),
+            };
+            let intensities = if s.with_transition_probabilities {
+                String::new()
+            } else {
+                "; no transition probabilities: position only".to_string()
+            };
+            lines.push(format!(
+                "  {}: {}, {} assigned, {} expected: {} seen / {} missing; {}; {:.1} % of the                  intensity{}. {}.",
+                s.species,
+                s.verdict,
+                s.lines_assigned,
+                s.lines_expected,
+                s.lines_expected_seen,
+                s.lines_missing,
+                temperature,
+                100.0 * s.intensity_fraction,
+                intensities,
+                s.reason
+            ));
+        }
+        if !absent_quiet.is_empty() {
+            lines.push(format!(
+                "  absent, no line assigned: {} (their candidates demoted; see the JSON for                  the reasons).",
+                absent_quiet.join(", ")
+            ));
+        }
+        lines
+    }
 }
 
 /// Counts for the summary line.
@@ -243,20 +339,57 @@ impl AssignReport<'_> {
             }
             lines.push(line);
         }
-        lines.push(format!(
-            "Matching: candidates within {} combined standard uncertainties; ranked by \
-             deviation, a line breaking an LS or one-electron rule counted {} standard \
-             uncertainties further off; chance probability P = 1 − exp(−2ρw) from the \
-             density ρ of predicted lines within ±{} times the tolerance.",
-            self.config.tolerance_sigma(),
-            self.config.rule_penalty_sigma(),
-            self.config.density_window_factor()
-        ));
+        match &self.evidence {
+            None => lines.push(format!(
+                "Matching: candidates within {} combined standard uncertainties; ranked by \
+                 deviation, a line breaking an LS or one-electron rule counted {} standard \
+                 uncertainties further off; chance probability P = 1 − exp(−2ρw) from the \
+                 density ρ of predicted lines within ±{} times the tolerance.",
+                self.config.tolerance_sigma(),
+                self.config.rule_penalty_sigma(),
+                self.config.density_window_factor()
+            )),
+            Some(e) => lines.push(format!(
+                "Matching: candidates within {} combined standard uncertainties; ranked by \
+                 log-likelihood (position, intensity as {} counts against each species' \
+                 Boltzmann populations, selection rules weighted {} σ for light LS spectra \
+                 and half that otherwise, blend shares, species evidence), {}; {} of {} \
+                 lines with an intensity; {} rounds{}; chance probability P = 1 − exp(−2ρw), \
+                 w = max(|Δ|, 0.1 u_c), from the density ρ of predicted lines within ±{} times \
+                 the tolerance.",
+                self.config.tolerance_sigma(),
+                e.config.units.name(),
+                self.config.rule_penalty_sigma(),
+                match e.config.resolution {
+                    crate::assign::Resolution::Joint =>
+                        "resolved jointly (one transition, one line; blends declared where \
+                         predictions of comparable intensity coincide)",
+                    crate::assign::Resolution::PerLine => "ranked per line",
+                },
+                e.lines_with_intensity,
+                self.assignments.len(),
+                e.rounds,
+                if e.converged {
+                    " to a fixed point"
+                } else {
+                    " (no fixed point reached)"
+                },
+                self.config.density_window_factor()
+            )),
+        }
         let c = self.counts();
+        let blends = if self.evidence.is_some() {
+            "declared blends"
+        } else {
+            "with more than one candidate"
+        };
         lines.push(format!(
-            "Result: {} lines, {} assigned ({} with more than one candidate), {} unassigned.",
+            "Result: {} lines, {} assigned ({} {blends}), {} unassigned.",
             c.lines, c.assigned, c.blends, c.unassigned
         ));
+        if let Some(e) = &self.evidence {
+            lines.extend(e.summary_lines());
+        }
         lines
     }
 }

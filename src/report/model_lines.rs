@@ -17,21 +17,23 @@ use crate::units::{AirFormula, Medium, air};
 /// |---|---|
 /// | `wavenumber_cm1` | vacuum wavenumber σ = E_upper − E_lower |
 /// | `wavelength_nm`, `medium` | the wavelength, in air at and above 200 nm (vacuum wavelength) and in vacuum below, unless all are asked in vacuum |
-/// | `lower_configuration`, `lower_term`, `lower_J`, `lower_energy_cm1`, `lower_percent` | lower level: its label, energy above the lowest level of the model, and the share of the label's LS state in it |
-/// | `upper_configuration`, `upper_term`, `upper_J`, `upper_energy_cm1`, `upper_percent` | upper level |
+/// | `lower_level`, `lower_configuration`, `lower_term`, `lower_J`, `lower_energy_cm1`, `lower_percent` | lower level: its number in the output of `termsight levels` (1 = lowest), its label, its energy on the model's own scale (as `termsight levels` prints it), and the share of the label's LS state in it |
+/// | `upper_level`, `upper_configuration`, `upper_term`, `upper_J`, `upper_energy_cm1`, `upper_percent` | upper level |
 /// | `strength_au` | line strength S, e²a₀² |
 /// | `gf`, `log_gf` | weighted oscillator strength and its base-10 logarithm |
 /// | `a_per_s` | Einstein A, s⁻¹ |
 /// | `flags` | `;`-separated: `LS-allowed`, or `intercombination`, `L-forbidden`, `jump-forbidden`, `two-electron-jump` |
-pub const LINE_COLUMNS: [&str; 18] = [
+pub const LINE_COLUMNS: [&str; 20] = [
     "wavenumber_cm1",
     "wavelength_nm",
     "medium",
+    "lower_level",
     "lower_configuration",
     "lower_term",
     "lower_J",
     "lower_energy_cm1",
     "lower_percent",
+    "upper_level",
     "upper_configuration",
     "upper_term",
     "upper_J",
@@ -68,17 +70,21 @@ pub struct LineRow {
     pub wavelength_nm: f64,
     /// The medium of the wavelength.
     pub medium: Medium,
+    /// Number of the lower level in `termsight levels` (1 = lowest).
+    pub lower_level: usize,
     /// Lower level.
     #[serde(serialize_with = "as_text")]
     pub lower: LevelLabel,
-    /// Its energy above the lowest level, cm⁻¹.
+    /// Its energy on the model's own scale, cm⁻¹.
     pub lower_energy_cm1: f64,
     /// The share of the lower label's LS state in the level, percent.
     pub lower_percent: f64,
+    /// Number of the upper level in `termsight levels`.
+    pub upper_level: usize,
     /// Upper level.
     #[serde(serialize_with = "as_text")]
     pub upper: LevelLabel,
-    /// Its energy above the lowest level, cm⁻¹.
+    /// Its energy on the model's own scale, cm⁻¹.
     pub upper_energy_cm1: f64,
     /// The share of the upper label's LS state in the level, percent.
     pub upper_percent: f64,
@@ -160,9 +166,11 @@ impl LinesReport {
                     wavenumber_cm1: line.wavenumber_cm1,
                     wavelength_nm,
                     medium,
+                    lower_level: line.lower + 1,
                     lower: lower.label.clone(),
                     lower_energy_cm1: lower.energy_cm1,
                     lower_percent: lower.label_percent,
+                    upper_level: line.upper + 1,
                     upper: upper.label.clone(),
                     upper_energy_cm1: upper.energy_cm1,
                     upper_percent: upper.label_percent,
@@ -252,8 +260,9 @@ impl LinesReport {
                 }
             ),
             format!(
-                "Levels named by their LS components (unique per model), energies above the \
-                 lowest level; {}.",
+                "Levels numbered as in termsight levels ([1] = lowest) and named by their LS \
+                 components (unique per model); energies on the model's own scale (the zero \
+                 of its E_av parameters, as in termsight levels and fit); {}.",
                 self.wavelengths
             ),
         ]
@@ -286,8 +295,8 @@ pub fn lines_table(report: &LinesReport) -> String {
                 Medium::Vacuum => "vac".to_string(),
             },
             format!("{:.3}", row.wavenumber_cm1),
-            row.lower.to_string(),
-            row.upper.to_string(),
+            format!("[{}] {}", row.lower_level, row.lower),
+            format!("[{}] {}", row.upper_level, row.upper),
             significant(row.strength_au, 4),
             significant(row.gf, 4),
             if row.gf > 0.0 {
@@ -325,11 +334,13 @@ pub fn lines_csv(report: &LinesReport) -> Vec<u8> {
             row.wavenumber_cm1.to_string(),
             row.wavelength_nm.to_string(),
             row.medium.name().to_string(),
+            row.lower_level.to_string(),
             configuration(&row.lower),
             row.lower.term.to_string(),
             row.lower.j.to_string(),
             row.lower_energy_cm1.to_string(),
             row.lower_percent.to_string(),
+            row.upper_level.to_string(),
             configuration(&row.upper),
             row.upper.term.to_string(),
             row.upper.j.to_string(),

@@ -11,7 +11,8 @@ use super::digits::{
 };
 use crate::levels::LEVEL_COLUMNS;
 use crate::levels::optimize::{
-    BlendPolicy, LevelResult, LineResult, OptimizationReport, OptimizeOptions, SpeciesResult,
+    BlendLoss, BlendPolicy, LevelResult, LineResult, OptimizationReport, OptimizeOptions,
+    SpeciesResult,
 };
 use crate::units::{AirFormula, LengthUnit, Medium, Wavelength, wavelength_uncertainty};
 
@@ -151,6 +152,7 @@ pub fn optimize_description(
             context.air_formula.citation()
         ),
     ];
+    lines.extend(report.lost_to_blends.iter().map(blend_loss_text));
     for species in &report.species {
         let systems: Vec<String> = species
             .systems
@@ -185,6 +187,44 @@ pub fn optimize_description(
         ));
     }
     lines
+}
+
+/// Levels named in full in a [`BlendLoss`] message; more are counted.
+const LOST_LEVELS_NAMED: usize = 12;
+
+/// A species or levels that lost every line to the blends left out, in words, with
+/// how to keep them.
+pub fn blend_loss_text(loss: &BlendLoss) -> String {
+    let mut names: Vec<String> = loss
+        .levels
+        .iter()
+        .take(LOST_LEVELS_NAMED)
+        .map(ToString::to_string)
+        .collect();
+    if loss.levels.len() > LOST_LEVELS_NAMED {
+        names.push(format!("{} more", loss.levels.len() - LOST_LEVELS_NAMED));
+    }
+    let what = if loss.whole_species {
+        format!(
+            "{}: missing from the results: all of its {} accepted lines are blends, left out \
+             (levels without a line: {})",
+            loss.species,
+            loss.blends,
+            names.join(", ")
+        )
+    } else {
+        format!(
+            "{}: {} level{} lost every line to the blends left out: {}",
+            loss.species,
+            loss.levels.len(),
+            if loss.levels.len() == 1 { "" } else { "s" },
+            names.join(", ")
+        )
+    };
+    format!(
+        "{what}; keep blends with --blends widen (their uncertainty multiplied by \
+         --blend-factor), or delete `blend` from the flags of the rows you trust."
+    )
 }
 
 /// The terminal output: the description, a level table per species and the lines

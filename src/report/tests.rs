@@ -84,6 +84,7 @@ impl Run {
             list: &self.list,
             predictions: &self.predictions,
             assignments: &self.assignments,
+            evidence: None,
         }
     }
 
@@ -383,6 +384,7 @@ fn outputs_are_the_same_on_one_core_and_on_four() {
                 list: &list,
                 predictions: &predictions,
                 assignments: &assignments,
+                evidence: None,
             };
             let table = assign_table(
                 &report,

@@ -141,7 +141,7 @@ impl Coupler {
                     shells
                         .entry((subshell.l, subshell.occupancy))
                         .or_insert_with(|| {
-                            Arc::new(ShellTerms::new(subshell.l, subshell.occupancy))
+                            super::shell::shared_shell_terms(subshell.l, subshell.occupancy)
                         });
                     open.push(OpenShell {
                         shell,

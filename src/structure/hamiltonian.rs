@@ -18,11 +18,12 @@
 //!   out (Brillouin's theorem for Hartree–Fock orbitals; common practice).
 
 use std::collections::{BTreeMap, BTreeSet, HashMap, HashSet};
+use std::sync::Arc;
 
 use nalgebra::DMatrix;
 
 use super::StructureError;
-use super::basis::{BasisTerm, Coupler, StateCache, weighted_dot};
+use super::basis::{BasisTerm, Coupler, DeterminantVector, StateCache, weighted_dot};
 use super::orbital::{Determinant, Orbital, SpinOrbitalLayout};
 use super::parameter::{ParameterId, Radial, Scope};
 use crate::angular::{CkTable, six_j, three_j};
@@ -30,6 +31,107 @@ use crate::notation::{Configuration, Parity};
 
 /// Coefficients smaller than this are exact zeros blurred by rounding.
 const ZERO: f64 = 1e-10;
+
+/// The coefficient matrix of one parameter in one J block, kept sparse: its
+/// non-zero elements (both triangles), sorted by (row, column). Coulomb matrices
+/// are block-diagonal in (L, S), so most elements of a large block are zero.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CoefficientMatrix {
+    size: usize,
+    entries: Vec<(u32, u32, f64)>,
+}
+
+/// What indexing returns for an element that is not stored.
+static NO_ELEMENT: f64 = 0.0;
+
+impl CoefficientMatrix {
+    /// The non-zero elements of a square matrix.
+    pub fn from_dense(m: &DMatrix<f64>) -> CoefficientMatrix {
+        let mut entries = Vec::new();
+        for r in 0..m.nrows() {
+            for c in 0..m.ncols() {
+                let x = m[(r, c)];
+                if x != 0.0 {
+                    entries.push((r as u32, c as u32, x));
+                }
+            }
+        }
+        CoefficientMatrix {
+            size: m.nrows(),
+            entries,
+        }
+    }
+
+    /// From elements (row, column, value) in any order; of an element given twice
+    /// the last is kept, and zeros are left out.
+    pub(crate) fn from_elements(size: usize, mut list: Vec<(u32, u32, f64)>) -> CoefficientMatrix {
+        // A stable sort keeps repeated elements in the order given.
+        list.sort_by_key(|&(r, c, _)| (r, c));
+        let mut entries: Vec<(u32, u32, f64)> = Vec::with_capacity(list.len());
+        for e in list {
+            match entries.last_mut() {
+                Some(last) if (last.0, last.1) == (e.0, e.1) => *last = e,
+                _ => entries.push(e),
+            }
+        }
+        entries.retain(|e| e.2 != 0.0);
+        CoefficientMatrix { size, entries }
+    }
+
+    /// The largest |element|.
+    pub fn largest(&self) -> f64 {
+        self.entries.iter().map(|e| e.2.abs()).fold(0.0, f64::max)
+    }
+
+    /// Number of rows (= columns).
+    pub fn size(&self) -> usize {
+        self.size
+    }
+
+    /// The stored elements (row, column, value), sorted by (row, column).
+    pub fn entries(&self) -> &[(u32, u32, f64)] {
+        &self.entries
+    }
+
+    /// The element at (row, column), 0 if not stored.
+    pub fn get(&self, row: usize, column: usize) -> f64 {
+        self[(row, column)]
+    }
+
+    /// The matrix written out in full.
+    pub fn to_dense(&self) -> DMatrix<f64> {
+        let mut m = DMatrix::zeros(self.size, self.size);
+        for &(r, c, x) in &self.entries {
+            m[(r as usize, c as usize)] = x;
+        }
+        m
+    }
+
+    /// h += value · C.
+    pub fn add_scaled_to(&self, value: f64, h: &mut DMatrix<f64>) {
+        for &(r, c, x) in &self.entries {
+            h[(r as usize, c as usize)] += value * x;
+        }
+    }
+
+    /// vᵀ C v.
+    pub fn quadratic_form(&self, v: &[f64]) -> f64 {
+        self.entries
+            .iter()
+            .map(|&(r, c, x)| x * v[r as usize] * v[c as usize])
+            .sum()
+    }
+}
+
+impl std::ops::Index<(usize, usize)> for CoefficientMatrix {
+    type Output = f64;
+
+    fn index(&self, (row, column): (usize, usize)) -> &f64 {
+        self.entries
+            .binary_search_by(|&(r, c, _)| (r as usize, c as usize).cmp(&(row, column)))
+            .map_or(&NO_ELEMENT, |i| &self.entries[i].2)
+    }
+}
 
 /// One (parity, J) block of the Hamiltonian.
 #[derive(Debug, Clone)]
@@ -39,7 +141,7 @@ pub struct JBlock {
     /// The LS basis states of the block (indices into [`ParityBlock::basis`]).
     pub states: Vec<usize>,
     /// (parameter index, coefficient matrix) for every parameter that acts here.
-    pub coefficients: Vec<(usize, DMatrix<f64>)>,
+    pub coefficients: Vec<(usize, CoefficientMatrix)>,
 }
 
 impl JBlock {
@@ -51,7 +153,7 @@ impl JBlock {
         for (p, c) in &self.coefficients {
             let value = values[*p];
             if value != 0.0 {
-                h.zip_apply(c, |x, y| *x += value * y);
+                c.add_scaled_to(value, &mut h);
             }
         }
         h
@@ -250,7 +352,7 @@ type LsMatrices = (Vec<usize>, BTreeMap<ParameterId, DMatrix<f64>>);
 /// Coefficient matrices of one block, keyed by parameter, before indexing.
 pub(crate) struct BlockMatrices {
     pub block: ParityBlock,
-    pub j_coefficients: Vec<BTreeMap<ParameterId, DMatrix<f64>>>,
+    pub j_coefficients: Vec<BTreeMap<ParameterId, CoefficientMatrix>>,
 }
 
 /// Build the basis and coefficient matrices of one parity block.
@@ -259,6 +361,7 @@ pub(crate) fn build_block(
     configurations: &[Configuration],
     members: &[usize],
     interactions: &HashSet<(usize, usize)>,
+    progress: &mut dyn FnMut(usize, usize),
 ) -> Result<BlockMatrices, StructureError> {
     // Active orbitals: every orbital of the block's configurations that is not
     // closed in all of them (those form the common core).
@@ -305,7 +408,19 @@ pub(crate) fn build_block(
     // ls_matrices[(L,2S)] = (terms, parameter → matrix over those terms).
     let mut ls_matrices: BTreeMap<(u32, u32), LsMatrices> = BTreeMap::new();
     let mut entries = Vec::new();
+    let mut two_js: BTreeSet<u32> = BTreeSet::new();
+    for term in &basis {
+        let mut j = (2 * term.l).abs_diff(term.two_s);
+        while j <= 2 * term.l + term.two_s {
+            two_js.insert(j);
+            j += 2;
+        }
+    }
+    let steps = groups.len() + two_js.len();
+    let mut step = 0;
     for (&(l, two_s), terms) in &groups {
+        step += 1;
+        progress(step, steps);
         let mut index: HashMap<Determinant, usize> = HashMap::new();
         let mut dets: Vec<(Determinant, usize)> = Vec::new();
         let vectors: Vec<_> = terms
@@ -321,9 +436,12 @@ pub(crate) fn build_block(
             }
         }
         let mut v = DMatrix::zeros(dets.len(), terms.len());
+        // The non-zero coefficients of each determinant: (term column, value).
+        let mut in_terms: Vec<Vec<(usize, f64)>> = vec![Vec::new(); dets.len()];
         for (col, vector) in vectors.iter().enumerate() {
             for (d, c) in vector.iter() {
                 v[(index[d], col)] = *c;
+                in_terms[index[d]].push((col, *c));
             }
         }
         let mut images: HashMap<ParameterId, DMatrix<f64>> = HashMap::new();
@@ -346,10 +464,14 @@ pub(crate) fn build_block(
                     let w = images
                         .entry(id)
                         .or_insert_with(|| DMatrix::zeros(dets.len(), terms.len()));
-                    for col in 0..terms.len() {
-                        w[(i, col)] += c * v[(j, col)];
-                        if i != j {
-                            w[(j, col)] += c * v[(i, col)];
+                    // Only the terms that contain the determinant: the others
+                    // have an exact zero there.
+                    for &(col, x) in &in_terms[j] {
+                        w[(i, col)] += c * x;
+                    }
+                    if i != j {
+                        for &(col, x) in &in_terms[i] {
+                            w[(j, col)] += c * x;
                         }
                     }
                 }
@@ -403,7 +525,12 @@ pub(crate) fn build_block(
         let terms: Vec<usize> = (0..basis.len())
             .filter(|&t| basis[t].local_configuration == local)
             .collect();
-        for shell in config.open.iter().filter(|s| s.subshell.l > 0) {
+        for (position, shell) in config
+            .open
+            .iter()
+            .enumerate()
+            .filter(|(_, s)| s.subshell.l > 0)
+        {
             let id = ParameterId {
                 scope: Scope::Configuration(config.configuration),
                 radial: Radial::SpinOrbit {
@@ -418,10 +545,23 @@ pub(crate) fn build_block(
                     .map(|s| s.m_l as f64 * s.two_m_s as f64 / 2.0)
                     .sum()
             };
+            // Each state at each (M_L, 2M_S) asked, plain and weighted by l_z s_z
+            // of this subshell, made once.
+            let mut plain: HashMap<(usize, i32, i32), Arc<DeterminantVector>> = HashMap::new();
+            let mut weighted: HashMap<(usize, i32, i32), DeterminantVector> = HashMap::new();
             for (x, &t) in terms.iter().enumerate() {
                 for &u in &terms[x..] {
                     let (a, b) = (&basis[t], &basis[u]);
                     if a.l.abs_diff(b.l) > 1 || a.two_s.abs_diff(b.two_s) > 2 {
+                        continue;
+                    }
+                    // An operator of this subshell alone keeps the terms of the other
+                    // subshells and the couplings made before this one (Edmonds
+                    // 1957, eqs. 7.1.7–7.1.8): the element is exactly zero otherwise.
+                    let others_differ = (0..config.open.len())
+                        .any(|o| o != position && a.shell_terms[o] != b.shell_terms[o])
+                        || a.couplings[..position] != b.couplings[..position];
+                    if others_differ {
                         continue;
                     }
                     let ml = a.l.min(b.l) as i32;
@@ -438,9 +578,17 @@ pub(crate) fn build_block(
                     if factor.abs() < 1e-14 {
                         continue;
                     }
-                    let va = coupler.state(a, ml, ms, &mut cache);
-                    let vb = coupler.state(b, ml, ms, &mut cache);
-                    let component = weighted_dot(&va, &vb, weight);
+                    let va = weighted.entry((t, ml, ms)).or_insert_with(|| {
+                        coupler
+                            .state(a, ml, ms, &mut cache)
+                            .iter()
+                            .map(|&(d, c)| (d, c * weight(&d)))
+                            .collect()
+                    });
+                    let vb = plain
+                        .entry((u, ml, ms))
+                        .or_insert_with(|| coupler.state(b, ml, ms, &mut cache));
+                    let component = weighted_dot(va, vb, |_| 1.0);
                     let reduced = component / factor;
                     if reduced.abs() > ZERO {
                         spin_orbit.push((t, u, id, reduced));
@@ -451,61 +599,62 @@ pub(crate) fn build_block(
     }
 
     // J blocks.
-    let mut two_js: BTreeSet<u32> = BTreeSet::new();
-    for term in &basis {
-        let mut j = (2 * term.l).abs_diff(term.two_s);
-        while j <= 2 * term.l + term.two_s {
-            two_js.insert(j);
-            j += 2;
-        }
-    }
-    let mut position: HashMap<usize, (u32, u32, usize)> = HashMap::new();
-    for (&key, (terms, _)) in &ls_matrices {
-        for (x, &t) in terms.iter().enumerate() {
-            position.insert(t, (key.0, key.1, x));
-        }
-    }
     let mut j_blocks = Vec::new();
     let mut j_coefficients = Vec::new();
     // 6j symbols repeat across pairs of states: compute each once.
     let mut six_js: HashMap<[u32; 5], f64> = HashMap::new();
+    // Position of each basis state in the current J block.
+    let mut local: Vec<Option<u32>> = vec![None; basis.len()];
     for two_j in two_js {
+        step += 1;
+        progress(step, steps);
         let states: Vec<usize> = (0..basis.len())
             .filter(|&t| crate::angular::triangle(2 * basis[t].l, basis[t].two_s, two_j))
             .collect();
         let n = states.len();
-        let mut local: HashMap<usize, usize> = HashMap::new();
+        local.iter_mut().for_each(|x| *x = None);
         for (x, &t) in states.iter().enumerate() {
-            local.insert(t, x);
+            local[t] = Some(x as u32);
         }
-        let mut matrices: BTreeMap<ParameterId, DMatrix<f64>> = BTreeMap::new();
+        // Elements (row, column, value) of each parameter, gathered unsorted; an
+        // element written twice keeps its last value.
+        let mut elements: BTreeMap<ParameterId, Vec<(u32, u32, f64)>> = BTreeMap::new();
         // E_av: the identity on each configuration's states.
         for (x, &t) in states.iter().enumerate() {
             let id = ParameterId {
                 scope: Scope::Configuration(basis[t].configuration),
                 radial: Radial::Average,
             };
-            matrices.entry(id).or_insert_with(|| DMatrix::zeros(n, n))[(x, x)] = 1.0;
+            elements
+                .entry(id)
+                .or_default()
+                .push((x as u32, x as u32, 1.0));
         }
-        // Coulomb, CI: copy the (L, S) matrices.
-        for (x, &t) in states.iter().enumerate() {
-            for (y, &u) in states.iter().enumerate() {
-                let (lt, st, xt) = position[&t];
-                let (lu, su, xu) = position[&u];
-                if (lt, st) != (lu, su) {
-                    continue;
-                }
-                for (id, m) in &ls_matrices[&(lt, st)].1 {
-                    let value = m[(xt, xu)];
-                    if value.abs() > ZERO {
-                        matrices.entry(*id).or_insert_with(|| DMatrix::zeros(n, n))[(x, y)] = value;
+        // Coulomb, CI: copy the (L, S) matrices, group by group.
+        for (terms, matrices) in ls_matrices.values() {
+            let here: Vec<(usize, u32)> = terms
+                .iter()
+                .enumerate()
+                .filter_map(|(xt, &t)| local[t].map(|x| (xt, x)))
+                .collect();
+            if here.is_empty() {
+                continue;
+            }
+            for (id, m) in matrices {
+                let list = elements.entry(*id).or_default();
+                for &(xt, x) in &here {
+                    for &(xu, y) in &here {
+                        let value = m[(xt, xu)];
+                        if value.abs() > ZERO {
+                            list.push((x, y, value));
+                        }
                     }
                 }
             }
         }
         // Spin–orbit.
         for &(t, u, id, reduced) in &spin_orbit {
-            let (Some(&x), Some(&y)) = (local.get(&t), local.get(&u)) else {
+            let (Some(x), Some(y)) = (local[t], local[u]) else {
                 continue;
             };
             let (a, b) = (&basis[t], &basis[u]);
@@ -517,12 +666,18 @@ pub(crate) fn build_block(
             let sign = phase(((2 * b.l + a.two_s + two_j) / 2) as i64);
             let value = sign * sixj * reduced;
             if value.abs() > ZERO {
-                let m = matrices.entry(id).or_insert_with(|| DMatrix::zeros(n, n));
-                m[(x, y)] = value;
-                m[(y, x)] = value;
+                let list = elements.entry(id).or_default();
+                list.push((x, y, value));
+                list.push((y, x, value));
             }
         }
-        matrices.retain(|_, m| m.amax() > ZERO);
+        let matrices: BTreeMap<ParameterId, CoefficientMatrix> = elements
+            .into_iter()
+            .filter_map(|(id, list)| {
+                let m = CoefficientMatrix::from_elements(n, list);
+                (m.largest() > ZERO).then_some((id, m))
+            })
+            .collect();
         j_blocks.push(JBlock {
             two_j,
             states,
@@ -771,5 +926,53 @@ mod reference {
         check_kinds(&["3d2.4p", "3d3"], &[], 8, |r| {
             matches!(r, Radial::SpinOrbit { .. })
         });
+    }
+}
+
+#[cfg(test)]
+mod sparse_tests {
+    use nalgebra::DMatrix;
+
+    use super::CoefficientMatrix;
+    use crate::notation::Configuration;
+    use crate::structure::LevelStructure;
+
+    #[test]
+    fn sparse_matrices_hold_exactly_the_dense_elements() {
+        // Every element of every block, stored or not, reads back as written
+        // (common practice, no source: a storage format must not change values).
+        let dense = DMatrix::from_row_slice(3, 3, &[1.5, 0.0, -2.0, 0.0, 0.0, 0.0, -2.0, 0.0, 7.0]);
+        let sparse = CoefficientMatrix::from_dense(&dense);
+        assert_eq!(sparse.entries().len(), 4);
+        assert_eq!(sparse.to_dense(), dense);
+        for r in 0..3 {
+            for c in 0..3 {
+                assert_eq!(sparse[(r, c)], dense[(r, c)]);
+            }
+        }
+        // vᵀCv against the dense product.
+        let v = [0.3, -1.1, 0.8];
+        let vector = nalgebra::DVector::from_row_slice(&v);
+        let want = vector.dot(&(&dense * &vector));
+        assert!((sparse.quadratic_form(&v) - want).abs() < 1e-15);
+    }
+
+    #[test]
+    fn a_second_build_equals_the_first() {
+        // The second build takes the subshell terms from the process-wide table
+        // filled by the first: the matrices must be bit for bit the same (a
+        // regression pin of the shared table, no outside source).
+        let configs: Vec<Configuration> = ["3d2.4s", "3d.4s2", "3d3"]
+            .iter()
+            .map(|l| l.parse().unwrap())
+            .collect();
+        let first = LevelStructure::build(&configs, &[(0, 1)]).unwrap();
+        let second = LevelStructure::build(&configs, &[(0, 1)]).unwrap();
+        for (a, b) in first.blocks().iter().zip(second.blocks()) {
+            assert_eq!(a.j_blocks.len(), b.j_blocks.len());
+            for (x, y) in a.j_blocks.iter().zip(&b.j_blocks) {
+                assert_eq!(x.coefficients, y.coefficients);
+            }
+        }
     }
 }

@@ -17,6 +17,15 @@ pub struct Component {
     pub percent: f64,
 }
 
+/// What [`LevelStructure::levels_with_progress`] reports after each J block.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct LevelsProgress {
+    /// LS states of the J blocks diagonalised so far.
+    pub states_done: usize,
+    /// LS states of every J block.
+    pub states_total: usize,
+}
+
 /// A level of the model.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Level {
@@ -66,6 +75,15 @@ impl LevelStructure {
     /// The Zeeman operator L + g_s S is diagonal in the LS basis within one J, so
     /// g_J = Σ_i |c_i|² g(L_i S_i J) over the eigenvector's components.
     pub fn levels(&self, values: &[f64]) -> Result<Vec<Level>, StructureError> {
+        self.levels_with_progress(values, |_| {})
+    }
+
+    /// [`Self::levels`], calling `progress` after each (parity, J) block.
+    pub fn levels_with_progress(
+        &self,
+        values: &[f64],
+        mut progress: impl FnMut(LevelsProgress),
+    ) -> Result<Vec<Level>, StructureError> {
         if values.len() != self.parameters.len() {
             return Err(StructureError::ValueCount {
                 expected: self.parameters.len(),
@@ -78,6 +96,12 @@ impl LevelStructure {
             });
         }
         let mut levels = Vec::new();
+        let states_total: usize = self
+            .blocks
+            .iter()
+            .flat_map(|b| b.j_blocks.iter().map(|j| j.states.len()))
+            .sum();
+        let mut states_done = 0;
         for (b, block) in self.blocks.iter().enumerate() {
             for (jb, j_block) in block.j_blocks.iter().enumerate() {
                 let h = j_block.hamiltonian(values);
@@ -98,16 +122,21 @@ impl LevelStructure {
                 }
                 // dE/dP_p for every root at once: diag(Vᵀ C_p V).
                 let mut derivatives = vec![vec![0.0; self.parameters.len()]; order.len()];
-                for (p, c) in &j_block.coefficients {
-                    let cv = c * &vectors;
-                    for (root, d) in derivatives.iter_mut().enumerate() {
-                        d[*p] = vectors.column(root).dot(&cv.column(root));
+                for (root, d) in derivatives.iter_mut().enumerate() {
+                    let v: Vec<f64> = vectors.column(root).iter().copied().collect();
+                    for (p, c) in &j_block.coefficients {
+                        d[*p] = c.quadratic_form(&v);
                     }
                 }
                 for (root, (&e, d)) in order.iter().zip(derivatives).enumerate() {
                     let vector: Vec<f64> = vectors.column(root).iter().copied().collect();
                     levels.push(self.level(b, jb, root, eigen.eigenvalues[e], vector, d));
                 }
+                states_done += j_block.states.len();
+                progress(LevelsProgress {
+                    states_done,
+                    states_total,
+                });
             }
         }
         levels.sort_by(|a, b| a.energy_cm1.total_cmp(&b.energy_cm1));

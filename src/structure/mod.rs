@@ -43,15 +43,17 @@ pub mod model;
 mod orbital;
 mod parameter;
 mod shell;
+mod size;
 
 use std::collections::HashSet;
 
 pub use basis::{BasisTerm, TermLabel};
-pub use hamiltonian::{JBlock, ParityBlock};
-pub use levels::{Component, Level, lande_g_ls};
+pub use hamiltonian::{CoefficientMatrix, JBlock, ParityBlock};
+pub use levels::{Component, Level, LevelsProgress, lande_g_ls};
 pub use orbital::{Determinant, MAX_SPIN_ORBITALS, Orbital, SpinOrbital, SpinOrbitalLayout};
 pub use parameter::{DipoleIntegral, ParameterId, Radial, Scope, scope_name};
 pub use shell::{MAX_SHELL_L, ShellTerm, ShellTerms};
+pub use size::{JBlockSize, MAX_J_BLOCK_STATES, MAX_SUBSHELL_DETERMINANTS, SizeEstimate};
 
 use crate::notation::{Configuration, Parity};
 
@@ -124,6 +126,41 @@ pub enum StructureError {
         /// Values given.
         found: usize,
     },
+    /// An open subshell with more determinants than the model handles.
+    #[error(
+        "configuration {configuration}: the open subshell {subshell} has {determinants} \
+         Slater determinants, more than the {limit} the level model handles (4f7 has \
+         3432); such a subshell is out of reach of this model, so leave the \
+         configuration out"
+    )]
+    SubshellTooLarge {
+        /// The configuration.
+        configuration: String,
+        /// The subshell, e.g. `6h11`.
+        subshell: String,
+        /// Its number of determinants.
+        determinants: u64,
+        /// [`MAX_SUBSHELL_DETERMINANTS`].
+        limit: u64,
+    },
+    /// A (parity, J) block with more states than the model handles.
+    #[error(
+        "the {parity} configurations give {states} levels of J = {j}, more than the \
+         {limit} one block may hold (largest share: {largest}); use fewer \
+         configurations, or split the list into smaller models"
+    )]
+    JBlockTooLarge {
+        /// The parity.
+        parity: Parity,
+        /// J, as printed (`7/2`).
+        j: String,
+        /// LS states of the block.
+        states: usize,
+        /// [`MAX_J_BLOCK_STATES`].
+        limit: usize,
+        /// The configuration with the most determinants in that parity.
+        largest: String,
+    },
     /// A value that is NaN or infinite.
     #[error("parameter {parameter} is not a finite number")]
     NotFinite {
@@ -139,6 +176,10 @@ pub struct BuildProgress {
     pub blocks_done: usize,
     /// Parity blocks in all.
     pub blocks_total: usize,
+    /// Steps ((L, S) groups, then J blocks) finished in the block being built.
+    pub steps_done: usize,
+    /// Steps of the block being built.
+    pub steps_total: usize,
 }
 
 /// The built level model: LS bases and coefficient matrices of every parity and J
@@ -161,7 +202,8 @@ impl LevelStructure {
         Self::build_with_progress(configurations, interactions, |_| {})
     }
 
-    /// [`Self::build`], calling `progress` after each parity block.
+    /// [`Self::build`], calling `progress` as each parity block is built (after
+    /// each of its (L, S) groups and J blocks) and after each block.
     pub fn build_with_progress(
         configurations: &[Configuration],
         interactions: &[(usize, usize)],
@@ -174,6 +216,7 @@ impl LevelStructure {
         let first = configurations
             .first()
             .ok_or(StructureError::NoConfigurations)?;
+        check_size(&configurations)?;
         for (i, c) in configurations.iter().enumerate() {
             if c.electron_count() != first.electron_count() {
                 return Err(StructureError::ElectronCount {
@@ -222,15 +265,26 @@ impl LevelStructure {
             let members: Vec<usize> = (0..configurations.len())
                 .filter(|&i| configurations[i].parity() == *parity)
                 .collect();
+            let total = parities.len();
             built.push(hamiltonian::build_block(
                 *parity,
                 &configurations,
                 &members,
                 &pairs,
+                &mut |steps_done, steps_total| {
+                    progress(BuildProgress {
+                        blocks_done: done,
+                        blocks_total: total,
+                        steps_done,
+                        steps_total,
+                    })
+                },
             )?);
             progress(BuildProgress {
                 blocks_done: done + 1,
-                blocks_total: parities.len(),
+                blocks_total: total,
+                steps_done: 0,
+                steps_total: 0,
             });
         }
         // Index the parameters that act somewhere, in (scope, kind) order.
@@ -285,6 +339,49 @@ impl LevelStructure {
     }
 }
 
+/// Count the levels of every (parity, J) block and the determinants of every
+/// configuration of a model, without building it (fast even for models far
+/// beyond the limits).
+pub fn estimate_size(configurations: &[Configuration]) -> SizeEstimate {
+    size::estimate(configurations, MAX_SHELL_L)
+}
+
+/// Refuse, before any work, a model beyond [`MAX_SUBSHELL_DETERMINANTS`] or
+/// [`MAX_J_BLOCK_STATES`].
+fn check_size(configurations: &[Configuration]) -> Result<(), StructureError> {
+    if let Some(found) = size::too_large_subshell(configurations, MAX_SHELL_L) {
+        return Err(StructureError::SubshellTooLarge {
+            configuration: configurations
+                .get(found.configuration)
+                .map(ToString::to_string)
+                .unwrap_or_default(),
+            subshell: found.subshell.to_string(),
+            determinants: found.determinants,
+            limit: MAX_SUBSHELL_DETERMINANTS,
+        });
+    }
+    let estimate = estimate_size(configurations);
+    if let Some(block) = estimate.largest_block()
+        && block.states > MAX_J_BLOCK_STATES
+    {
+        let largest = configurations
+            .iter()
+            .zip(&estimate.determinants)
+            .filter(|(c, _)| c.parity() == block.parity)
+            .max_by_key(|(_, d)| **d)
+            .map(|(c, d)| format!("{c}, {d} determinants"))
+            .unwrap_or_default();
+        return Err(StructureError::JBlockTooLarge {
+            parity: block.parity,
+            j: crate::notation::HalfInt { twice: block.two_j }.to_string(),
+            states: block.states,
+            limit: MAX_J_BLOCK_STATES,
+            largest,
+        });
+    }
+    Ok(())
+}
+
 /// The parameters that `configurations`, with configuration interaction between the
 /// pairs in `interactions`, need: for a radial calculation to fill in.
 pub fn required_parameters(
@@ -292,4 +389,39 @@ pub fn required_parameters(
     interactions: &[(usize, usize)],
 ) -> Result<Vec<ParameterId>, StructureError> {
     Ok(LevelStructure::build(configurations, interactions)?.parameters)
+}
+
+#[cfg(test)]
+mod size_tests {
+    use super::*;
+
+    #[test]
+    fn a_huge_subshell_is_refused_with_its_count_and_a_hint() {
+        // 6h¹¹: C(22, 11) = 705 432 determinants (common practice, no source).
+        let configs: Vec<Configuration> = vec!["6h11".parse().unwrap()];
+        let start = std::time::Instant::now();
+        let error = LevelStructure::build(&configs, &[]).unwrap_err();
+        let text = error.to_string();
+        assert!(text.contains("705432"), "{text}");
+        assert!(text.contains("10000"), "{text}");
+        assert!(text.contains("leave the configuration out"), "{text}");
+        // Refused before any work (a loose bound, not a timing goal).
+        assert!(start.elapsed() < std::time::Duration::from_secs(5));
+    }
+
+    #[test]
+    fn a_huge_j_block_is_refused_with_its_size() {
+        // 4f⁵.5d.6p.7s: 2002·10·6·2 = 240 240 determinants, thousands of levels
+        // per J (counted by estimate_size, checked on p² and f³ in size.rs).
+        let configs: Vec<Configuration> = vec!["4f5.5d.6p.7s".parse().unwrap()];
+        let estimate = estimate_size(&configs);
+        let largest = estimate.largest_block().unwrap().states;
+        assert!(largest > MAX_J_BLOCK_STATES, "{largest}");
+        let text = LevelStructure::build(&configs, &[])
+            .unwrap_err()
+            .to_string();
+        assert!(text.contains(&largest.to_string()), "{text}");
+        assert!(text.contains("2000"), "{text}");
+        assert!(text.contains("split the list"), "{text}");
+    }
 }

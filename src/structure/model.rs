@@ -53,8 +53,9 @@
 //!   another parameter) with `ratio` (default 1): a tied parameter equals ratio ×
 //!   the other and needs no `value` (if one is given it must agree).
 //!   A tie names the parameter as `name@scope` (`zeta(3p)@3s.3p`,
-//!   `R1(3s3s,3p3p)@3s2~3p2`), or by its short name alone when that is in the same
-//!   table or unique in the model.
+//!   `R1(3s3s,3p3p)@3s2~3p2`), or by its short name alone, which means another
+//!   parameter: the one of that name in the same table, else the only other one of
+//!   that name in the model.
 //!
 //! Every error names the file, line and key.
 
@@ -67,7 +68,7 @@ use toml::de::{DeTable, DeValue};
 
 use super::orbital::Orbital;
 use super::parameter::{DipoleIntegral, ParameterId, Radial, Scope, scope_name};
-use super::{LevelStructure, StructureError};
+use super::{BuildProgress, LevelStructure, StructureError};
 use crate::location::Location;
 use crate::notation::{Configuration, Species};
 
@@ -217,6 +218,28 @@ struct Entry {
     uncertainty: Option<f64>,
 }
 
+/// The largest parameter value or uncertainty a model may give, cm⁻¹ (about
+/// 1.2 MeV): ten times the binding energy of a 1s electron in the heaviest ions,
+/// beyond any atomic parameter, and small enough that energies keep digits below
+/// 1 cm⁻¹ (a value such as 1e300 would swallow every other and print 300 digits).
+pub const MAX_PARAMETER_CM1: f64 = 1e10;
+
+/// `value` when it is at most [`MAX_PARAMETER_CM1`] in size, else the error for
+/// `field` at `offset`.
+fn bounded(lines: &Lines<'_>, offset: usize, field: &str, value: f64) -> Result<f64, ModelError> {
+    if value.abs() > MAX_PARAMETER_CM1 {
+        return Err(lines.error(
+            offset,
+            field,
+            format!(
+                "{value:e} cm⁻¹ is out of range: an atomic parameter is at most \
+                 {MAX_PARAMETER_CM1:e} cm⁻¹ in size (check the unit: cm⁻¹, not Hz or eV)"
+            ),
+        ));
+    }
+    Ok(value)
+}
+
 fn number(value: &DeValue<'_>) -> Option<f64> {
     let parsed = match value {
         DeValue::Integer(i) => i64::from_str_radix(i.as_str(), i.radix())
@@ -229,7 +252,17 @@ fn number(value: &DeValue<'_>) -> Option<f64> {
 }
 
 /// Read a model from `reader`; `source` names it in errors.
-pub fn read_model(mut reader: impl BufRead, source: &str) -> Result<LoadedModel, ModelError> {
+pub fn read_model(reader: impl BufRead, source: &str) -> Result<LoadedModel, ModelError> {
+    read_model_with_progress(reader, source, |_| {})
+}
+
+/// [`read_model`], calling `progress` as the level structure is built (see
+/// [`LevelStructure::build_with_progress`]).
+pub fn read_model_with_progress(
+    mut reader: impl BufRead,
+    source: &str,
+    progress: impl FnMut(BuildProgress),
+) -> Result<LoadedModel, ModelError> {
     let mut bytes = Vec::new();
     reader
         .read_to_end(&mut bytes)
@@ -246,11 +279,20 @@ pub fn read_model(mut reader: impl BufRead, source: &str) -> Result<LoadedModel,
             "the text is not valid UTF-8 (save the model as UTF-8)",
         )
     })?;
-    parse_model(&text, source)
+    parse_model_with_progress(&text, source, progress)
 }
 
 /// Read a model from its text; `source` names it in errors.
 pub fn parse_model(text: &str, source: &str) -> Result<LoadedModel, ModelError> {
+    parse_model_with_progress(text, source, |_| {})
+}
+
+/// [`parse_model`], calling `progress` as the level structure is built.
+pub fn parse_model_with_progress(
+    text: &str,
+    source: &str,
+    progress: impl FnMut(BuildProgress),
+) -> Result<LoadedModel, ModelError> {
     let lines = Lines::new(source, text);
     let document = DeTable::parse(text).map_err(|e| {
         let offset = e.span().map_or(0, |s| s.start);
@@ -444,23 +486,24 @@ pub fn parse_model(text: &str, source: &str) -> Result<LoadedModel, ModelError> 
     }
 
     // Build the structure to learn which parameters are needed.
-    let structure =
-        LevelStructure::build(&configurations, &interactions).map_err(|e| match &e {
-            StructureError::ElectronCount { configuration, .. }
-            | StructureError::Duplicate { configuration } => {
-                let i = configurations
-                    .iter()
-                    .rposition(|c| c.to_string() == *configuration)
-                    .unwrap_or(0);
-                lines.error(label_offsets[i], "label", e.to_string())
-            }
-            StructureError::OppositeParity { .. } => lines.error(
-                between_offsets.first().copied().unwrap_or(0),
-                "between",
-                e.to_string(),
-            ),
-            _ => lines.error(label_offsets[0], "label", e.to_string()),
-        })?;
+    let structure = LevelStructure::build_with_progress(&configurations, &interactions, progress)
+        .map_err(|e| match &e {
+        StructureError::ElectronCount { configuration, .. }
+        | StructureError::SubshellTooLarge { configuration, .. }
+        | StructureError::Duplicate { configuration } => {
+            let i = configurations
+                .iter()
+                .rposition(|c| c.to_string() == *configuration)
+                .unwrap_or(0);
+            lines.error(label_offsets[i], "label", e.to_string())
+        }
+        StructureError::OppositeParity { .. } => lines.error(
+            between_offsets.first().copied().unwrap_or(0),
+            "between",
+            e.to_string(),
+        ),
+        _ => lines.error(label_offsets[0], "label", e.to_string()),
+    })?;
     let needed = structure.parameters();
     let names_in = |scope: Scope| -> String {
         needed
@@ -542,7 +585,7 @@ pub fn parse_model(text: &str, source: &str) -> Result<LoadedModel, ModelError> 
         let entry = &entries[given[id]];
         let vary = match (&entry.tie, entry.vary.as_deref()) {
             (Some((name, at)), None) => {
-                let target = resolve_tie(name, entry.scope, &configurations, needed)
+                let target = resolve_tie(name, *id, &configurations, needed)
                     .map_err(|m| lines.error(*at, &entry.key, m))?;
                 if target == *id {
                     return Err(lines.error(
@@ -720,10 +763,24 @@ fn read_entries(
                         number(v.get_ref()).ok_or_else(|| lines.error(here, &field, "not a number"))
                     };
                     match k.get_ref().as_ref() {
-                        "value" => entry.value = Some(num(v)?),
-                        "ratio" => entry.ratio = num(v)?,
+                        "value" => entry.value = Some(bounded(lines, here, &field, num(v)?)?),
+                        "ratio" => {
+                            let ratio = num(v)?;
+                            if ratio == 0.0 {
+                                return Err(lines.error(
+                                    here,
+                                    &field,
+                                    format!(
+                                        "a ratio of 0 would hold {name} at 0 whatever the \
+                                         other parameter does; to keep it at 0 write \
+                                         {{ value = 0, vary = \"fixed\" }}"
+                                    ),
+                                ));
+                            }
+                            entry.ratio = bounded(lines, here, &field, ratio)?;
+                        }
                         "uncertainty" => {
-                            let u = num(v)?;
+                            let u = bounded(lines, here, &field, num(v)?)?;
                             if u < 0.0 {
                                 return Err(lines.error(
                                     here,
@@ -769,13 +826,14 @@ fn read_entries(
                 }
             }
             other => {
-                entry.value = Some(number(other).ok_or_else(|| {
+                let value = number(other).ok_or_else(|| {
                     lines.error(
                         at,
                         name,
                         "not a number; give a value in cm⁻¹ or a table { value = … }",
                     )
-                })?);
+                })?;
+                entry.value = Some(bounded(lines, at, name, value)?);
             }
         }
         out.push(entry);
@@ -783,11 +841,14 @@ fn read_entries(
     Ok(())
 }
 
-/// The parameter a tie names: `name@scope`, or a short name found first in
-/// `scope`, else unique in the model.
+/// The parameter that the tie of parameter `own` names: `name@scope`, or a short
+/// name. A short name means another parameter (a parameter is never tied to
+/// itself): the one of that name in `own`'s table, else the only one of that name
+/// in the model (so `"zeta(3p)" = { tie = "zeta(3p)" }` in the table of 3p2 names
+/// the ζ(3p) of the one other configuration with a 3p electron).
 fn resolve_tie(
     text: &str,
-    scope: Scope,
+    own: ParameterId,
     configurations: &[Configuration],
     needed: &[ParameterId],
 ) -> Result<ParameterId, String> {
@@ -799,30 +860,34 @@ fn resolve_tie(
     let candidates: Vec<&ParameterId> = needed
         .iter()
         .filter(|p| p.radial.same_integral(&radial))
+        .filter(|p| scope_text.is_some() || **p != own)
         .collect();
     let found = match scope_text {
         Some(s) => candidates
             .iter()
             .find(|p| scope_name(p.scope, configurations) == s)
             .copied(),
-        None => {
-            candidates
-                .iter()
-                .find(|p| p.scope == scope)
-                .copied()
-                .or(if candidates.len() == 1 {
-                    Some(candidates[0])
-                } else {
-                    None
-                })
-        }
+        None => candidates
+            .iter()
+            .find(|p| p.scope == own.scope)
+            .copied()
+            .or(if candidates.len() == 1 {
+                Some(candidates[0])
+            } else {
+                None
+            }),
     };
     found.copied().ok_or_else(|| {
         let names: Vec<String> = candidates
             .iter()
             .map(|p| p.full_name(configurations))
             .collect();
-        if names.is_empty() {
+        if names.is_empty() && scope_text.is_none() && own.radial.same_integral(&radial) {
+            format!(
+                "the tie '{text}' names only this parameter itself; no other configuration \
+                 has {radial}"
+            )
+        } else if names.is_empty() {
             format!("the tie '{text}' names no parameter of the model")
         } else {
             format!(
@@ -988,6 +1053,97 @@ between = ["3s2", "3p2"]
             e.starts_with("m.toml:3: key 'model_uncertainty_cm1'") && e.contains("1e150"),
             "{e}"
         );
+    }
+
+    #[test]
+    fn a_short_name_tie_names_another_parameter_never_itself() {
+        // Regression: `"zeta(3p)" = { tie = "zeta(3p)" }` in the table of 3p2 was
+        // resolved to the parameter itself (the short name looked first in its own
+        // table) and refused as "tied to itself". A short name now means the one
+        // other parameter of that name; ζ(3p)@3p2 = 1.1 × 40 = 44 cm⁻¹.
+        let text = MG.replace("\"zeta(3p)@3s.3p\"", "\"zeta(3p)\"");
+        let model = parse_model(&text, "m.toml").unwrap().model;
+        let zeta = model
+            .parameters
+            .iter()
+            .find(|p| model.full_name(&p.id) == "zeta(3p)@3p2")
+            .unwrap();
+        let Vary::Tied { to, ratio } = zeta.vary else {
+            panic!("not tied: {:?}", zeta.vary);
+        };
+        assert_eq!(model.full_name(&to), "zeta(3p)@3s.3p");
+        assert_eq!(ratio, 1.1);
+        assert!((zeta.value - 44.0).abs() < 1e-12);
+        // A short name of another parameter of the same table is that one: F4(3d)
+        // = 0.63 F2(3d) within 3d2.
+        let d2 = "species = \"Ti III\"\n[[configuration]]\nlabel = \"3d2\"\nEav = 0\n\
+                  \"F2(3d)\" = 50000.0\n\"F4(3d)\" = { tie = \"F2(3d)\", ratio = 0.63 }\n\
+                  \"zeta(3d)\" = 120.0\n";
+        let model = parse_model(d2, "d2.toml").unwrap().model;
+        let f4 = model
+            .parameters
+            .iter()
+            .find(|p| model.full_name(&p.id) == "F4(3d)@3d2")
+            .unwrap();
+        assert!((f4.value - 31500.0).abs() < 1e-9);
+        // A short name that only this parameter has is refused, saying so.
+        let e = error(&MG.replace(
+            "\"G1(3s,3p)\" = { value = 12000.0, uncertainty = 150.0 }",
+            "\"G1(3s,3p)\" = { tie = \"G1(3s,3p)\" }",
+        ));
+        assert!(
+            e.starts_with("m.toml:11: key 'G1(3s,3p)'") && e.contains("only this parameter itself"),
+            "{e}"
+        );
+        // Two others of that name: the short name is ambiguous; the message lists
+        // the full names to write.
+        let three = MG.replace("\"zeta(3p)@3s.3p\"", "\"zeta(3p)\"")
+            + "\n[[configuration]]\nlabel = \"3s.4p\"\nEav = 50000.0\n\
+               \"G1(3s,4p)\" = 900.0\n\"zeta(4p)\" = 10.0\n\n[[configuration]]\n\
+               label = \"3p.4s\"\nEav = 70000.0\n\"G1(3p,4s)\" = 900.0\n\"zeta(3p)\" = 45.0\n";
+        let e = error(&three);
+        assert!(
+            e.contains("not one parameter")
+                && e.contains("zeta(3p)@3s.3p")
+                && e.contains("zeta(3p)@3p.4s"),
+            "{e}"
+        );
+        // The full name, with the scope after @, is never ambiguous.
+        let fixed = three.replacen("{ tie = \"zeta(3p)\"", "{ tie = \"zeta(3p)@3p.4s\"", 1);
+        let model = parse_model(&fixed, "m.toml").unwrap().model;
+        let zeta = model
+            .parameters
+            .iter()
+            .find(|p| model.full_name(&p.id) == "zeta(3p)@3p2")
+            .unwrap();
+        assert!((zeta.value - 1.1 * 45.0).abs() < 1e-9);
+    }
+
+    #[test]
+    fn the_model_of_the_readme_reads_with_every_tie_form() {
+        // The README documents the format with this example; it must stay true.
+        // Each tied value is ratio × the value of the parameter named (arithmetic
+        // of the README's numbers).
+        let readme = include_str!("../../README.md");
+        let start = readme.find("```toml\n").expect("README has a TOML model") + 8;
+        let length = readme[start..].find("```").expect("the TOML block ends");
+        let loaded = parse_model(&readme[start..start + length], "README.md").unwrap();
+        let model = &loaded.model;
+        let value = |name: &str| {
+            model
+                .parameters
+                .iter()
+                .find(|p| model.full_name(&p.id) == name)
+                .unwrap_or_else(|| panic!("{name} not in the model"))
+                .value
+        };
+        assert!((value("zeta(3p)@3p2") - 1.1 * 40.0).abs() < 1e-9);
+        assert!((value("F4(3d)@3d2") - 0.63 * 20000.0).abs() < 1e-9);
+        assert!((value("G1(3s,4p)@3s.4p") - 0.3 * 12000.0).abs() < 1e-9);
+        assert!((value("zeta(4p)@3s.4p") - 0.3 * 40.0).abs() < 1e-9);
+        assert!((value("R2(3s3s,3d3d)@3s2~3d2") - 0.5 * 15000.0).abs() < 1e-9);
+        assert_eq!(model.model_uncertainty_cm1, Some(300.0));
+        assert_eq!(model.dipole.len(), 2);
     }
 
     fn error(text: &str) -> String {

@@ -173,7 +173,9 @@ impl FromStr for Radial {
                 _ => Err(bad()),
             };
         }
-        let (letter, digits) = head.split_at(head.len().min(1));
+        // The letter is one character, which need not be one byte.
+        let letter_end = head.chars().next().map_or(0, char::len_utf8);
+        let (letter, digits) = head.split_at(letter_end);
         let k: u32 = digits.parse().map_err(|_| bad())?;
         match (letter, args.as_slice()) {
             ("F", [a]) => {
@@ -337,6 +339,18 @@ mod tests {
         assert!("G1(3d,3d)".parse::<Radial>().is_err());
         assert!("F2(3x)".parse::<Radial>().is_err());
         assert!("Q2(3d)".parse::<Radial>().is_err());
+    }
+
+    #[test]
+    fn a_name_that_starts_with_a_non_ascii_letter_is_an_error_not_a_panic() {
+        // Found by the fuzz target `notation` (tests/fuzz/reproducers/notation/):
+        // the name was split after its first byte, inside the two-byte 'ޢ', and the
+        // reader panicked. A model key such as "ޢ2(3p)" reached it. Bad input must
+        // give an error (common practice, no source).
+        for name in ["\u{7b2}2(3p)", "ζ(3p)", "Ф2(3d)", "é"] {
+            let e = name.parse::<Radial>().unwrap_err();
+            assert!(e.contains("is not a parameter name"), "{name}: {e}");
+        }
     }
 
     #[test]

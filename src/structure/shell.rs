@@ -220,6 +220,30 @@ fn canonical_basis(basis: &DMatrix<f64>) -> Vec<Vec<f64>> {
     chosen
 }
 
+/// The terms of lⁿ, derived once per process for each (l, n) and shared: they
+/// are angular data of the subshell alone, and deriving them (diagonalisations
+/// over the subshell's determinants) is most of the cost of building a model of
+/// f⁶ or f⁷.
+pub(crate) fn shared_shell_terms(l: u32, electrons: u32) -> std::sync::Arc<ShellTerms> {
+    use std::sync::{Arc, Mutex, OnceLock};
+    type Table = Mutex<BTreeMap<(u32, u32), Arc<ShellTerms>>>;
+    static TABLE: OnceLock<Table> = OnceLock::new();
+    let table = TABLE.get_or_init(|| Mutex::new(BTreeMap::new()));
+    if let Some(found) = table
+        .lock()
+        .ok()
+        .and_then(|t| t.get(&(l, electrons)).cloned())
+    {
+        return found;
+    }
+    // Derived outside the lock: two threads may both derive it, with equal results.
+    let terms = Arc::new(ShellTerms::new(l, electrons));
+    if let Ok(mut t) = table.lock() {
+        t.entry((l, electrons)).or_insert_with(|| terms.clone());
+    }
+    terms
+}
+
 impl ShellTerms {
     /// Derive the terms of lⁿ: in each (M_L = L, M_S = S) block the states killed by
     /// L₊ and S₊ (Condon & Shortley 1935, §8³), separated by the eigenvalue of the

@@ -10,8 +10,8 @@ const NO_STRENGTH: f64 = 1e-12;
 
 /// The lines of `spectrum` as predictions of `species` for [`crate::assign`].
 ///
-/// - Levels carry their unique model labels and their energies above the lowest
-///   level, with uncertainty 0; `source` reads `model <origin>`.
+/// - Levels carry their unique model labels and their energies on the model's own
+///   scale (as `termsight levels` prints them), with uncertainty 0; `source` reads `model <origin>`.
 /// - Lines carry uncertainty 0: the model's uncertainty enters once per species,
 ///   `model_uncertainty_cm1`, which the matcher adds in quadrature.
 /// - The relative strength of each line is its gf value.

@@ -20,7 +20,8 @@ pub struct LabelledLevel {
     pub label: LevelLabel,
     /// The share of that LS state in the level, percent.
     pub label_percent: f64,
-    /// Energy above the lowest level of the model, cm⁻¹.
+    /// Energy on the model's own scale, cm⁻¹: the zero of its E_av parameters, the
+    /// scale of `termsight levels` and `fit` (not shifted to the lowest level).
     pub energy_cm1: f64,
 }
 
@@ -140,12 +141,11 @@ pub fn model_spectrum(
     }
     let levels = structure.levels(values)?;
     let labels = unique_labels(structure, &levels);
-    let ground = levels.first().map_or(0.0, |l| l.energy_cm1);
     let labelled: Vec<LabelledLevel> = levels
         .into_iter()
         .zip(labels)
         .map(|(level, (label, label_percent))| LabelledLevel {
-            energy_cm1: level.energy_cm1 - ground,
+            energy_cm1: level.energy_cm1,
             level,
             label,
             label_percent,

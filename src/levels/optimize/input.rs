@@ -13,6 +13,7 @@
 //! | `flags` | no | `;`-separated; `blend` marks a line with several candidates |
 //! | `accept` | no | `yes`/`y`/`true`/`1`/`x` accepts the row, `no`/`n`/`false`/`0`/blank rejects it |
 //! | `lower_energy_cm1`, `upper_energy_cm1` | no | tabulated energies, used to place each system's reference level |
+//! | `observed_intensity` | no | the line's intensity as given (for the term diagram's line widths) |
 //!
 //! Column names are matched ignoring case; other columns are ignored. `#` starts a
 //! comment line.
@@ -51,6 +52,8 @@ pub struct ClassifiedLine {
     pub lower_energy_cm1: Option<f64>,
     /// Tabulated energy of the upper level, cm⁻¹, when given.
     pub upper_energy_cm1: Option<f64>,
+    /// The observed intensity as given (`observed_intensity`), when the file has one.
+    pub intensity: Option<f64>,
 }
 
 impl ClassifiedLine {
@@ -141,7 +144,7 @@ const REQUIRED: [&str; 8] = [
     "observed_uncertainty_cm1",
 ];
 
-const OPTIONAL: [&str; 7] = [
+const OPTIONAL: [&str; 8] = [
     "species",
     "line",
     "rank",
@@ -149,6 +152,7 @@ const OPTIONAL: [&str; 7] = [
     "accept",
     "lower_energy_cm1",
     "upper_energy_cm1",
+    "observed_intensity",
 ];
 
 /// Read classified lines. `default_species` is used when the file has no `species`
@@ -401,8 +405,52 @@ impl Fields<'_> {
             accept: self.accept()?,
             lower_energy_cm1: self.optional_number("lower_energy_cm1")?,
             upper_energy_cm1: self.optional_number("upper_energy_cm1")?,
+            // Only drawn, never fitted: a cell that is not a number is no intensity.
+            intensity: self
+                .text("observed_intensity")
+                .parse::<f64>()
+                .ok()
+                .filter(|v| v.is_finite()),
         }))
     }
+}
+
+/// The classified lines of an assignment held in memory (the rows of the assign CSV,
+/// as [`crate::assign::records`] gives them): every row with a candidate, as
+/// [`read_classified_lines`] would read the CSV back without an `accept` column.
+pub fn classified_from_records(
+    source: &str,
+    records: &[crate::assign::AssignmentRecord],
+) -> ClassifiedLines {
+    let mut out = ClassifiedLines {
+        source: source.to_string(),
+        lines: Vec::new(),
+        unassigned_rows: 0,
+        has_accept_column: false,
+    };
+    for (row, record) in records.iter().enumerate() {
+        let Some(candidate) = &record.candidate else {
+            out.unassigned_rows += 1;
+            continue;
+        };
+        out.lines.push(ClassifiedLine {
+            line: record.line,
+            // The header line comes first in the CSV.
+            source_line: row + 2,
+            species: candidate.species,
+            lower: candidate.lower.clone(),
+            upper: candidate.upper.clone(),
+            wavenumber_cm1: record.observed_wavenumber_cm1,
+            uncertainty_cm1: record.observed_uncertainty_cm1,
+            rank: record.rank,
+            blend: record.flags.contains(&crate::assign::Flag::Blend),
+            accept: None,
+            lower_energy_cm1: Some(candidate.lower_energy_cm1),
+            upper_energy_cm1: Some(candidate.upper_energy_cm1),
+            intensity: record.observed_intensity,
+        });
+    }
+    out
 }
 
 #[cfg(test)]

@@ -33,10 +33,13 @@
 pub mod input;
 pub mod spectrum;
 
-pub use input::{ClassifiedLine, ClassifiedLines, ClassifiedReadError, read_classified_lines};
+pub use input::{
+    ClassifiedLine, ClassifiedLines, ClassifiedReadError, classified_from_records,
+    read_classified_lines,
+};
 pub use spectrum::{
-    BlendPolicy, LevelResult, LineResult, OptimizationReport, OptimizeOptions, Selection,
-    SpeciesResult, SpectrumError, SystemResult, optimize_classified,
+    BlendLoss, BlendPolicy, LevelResult, LineResult, OptimizationReport, OptimizeOptions,
+    Selection, SpeciesResult, SpectrumError, SystemResult, optimize_classified,
 };
 
 use faer::linalg::solvers::{DenseSolveCore, Solve};

@@ -154,6 +154,60 @@ pub struct OptimizationReport {
     pub selection: Selection,
     /// True when the input had an `accept` column.
     pub by_accept_column: bool,
+    /// The species and levels whose every accepted line was a blend left out, so
+    /// that they are missing from the results (empty when blends are kept).
+    pub lost_to_blends: Vec<BlendLoss>,
+}
+
+/// A species, or some levels of one, left without any line because every accepted
+/// line they are in is a blend left out (`--blends omit`).
+#[derive(Debug, Clone, PartialEq)]
+pub struct BlendLoss {
+    /// The spectrum.
+    pub species: Species,
+    /// True when the species has no line left at all.
+    pub whole_species: bool,
+    /// The levels left without a line, in order of first appearance.
+    pub levels: Vec<LevelLabel>,
+    /// The blends of the species left out.
+    pub blends: usize,
+}
+
+/// What leaving out `omitted` (accepted blends) took away from the results made of
+/// `chosen`: the species without any line, and the levels without any line.
+fn blend_losses(omitted: &[&ClassifiedLine], chosen: &[(&ClassifiedLine, bool)]) -> Vec<BlendLoss> {
+    let mut losses: Vec<BlendLoss> = Vec::new();
+    for line in omitted {
+        let kept: Vec<&ClassifiedLine> = chosen
+            .iter()
+            .map(|(l, _)| *l)
+            .filter(|l| l.species == line.species)
+            .collect();
+        let position = match losses.iter().position(|l| l.species == line.species) {
+            Some(position) => position,
+            None => {
+                losses.push(BlendLoss {
+                    species: line.species,
+                    whole_species: kept.is_empty(),
+                    levels: Vec::new(),
+                    blends: 0,
+                });
+                losses.len() - 1
+            }
+        };
+        let Some(loss) = losses.get_mut(position) else {
+            continue;
+        };
+        loss.blends += 1;
+        for level in [&line.lower, &line.upper] {
+            let still_there = kept.iter().any(|l| &l.lower == level || &l.upper == level);
+            if !still_there && !loss.levels.contains(level) {
+                loss.levels.push(level.clone());
+            }
+        }
+    }
+    losses.retain(|l| l.whole_species || !l.levels.is_empty());
+    losses
 }
 
 /// Why a labelled optimisation failed.
@@ -200,12 +254,16 @@ pub fn optimize_classified(
         ..Selection::default()
     };
     let mut chosen: Vec<(&ClassifiedLine, bool)> = Vec::new();
+    let mut omitted: Vec<&ClassifiedLine> = Vec::new();
     for line in &input.lines {
         if !line.accepted() {
             selection.not_accepted += 1;
         } else if line.blend {
             match options.blends {
-                BlendPolicy::Omit => selection.blends_omitted += 1,
+                BlendPolicy::Omit => {
+                    selection.blends_omitted += 1;
+                    omitted.push(line);
+                }
                 BlendPolicy::Widen(factor) => {
                     let widened = line.uncertainty_cm1 * factor;
                     if !(1.0 / (widened * widened)).is_normal() {
@@ -261,6 +319,7 @@ pub fn optimize_classified(
         species,
         selection,
         by_accept_column: input.has_accept_column,
+        lost_to_blends: blend_losses(&omitted, &chosen),
     })
 }
 

@@ -1,0 +1,6 @@
+//! Fuzz target: see `termsight::fuzzing::model`. It checks no values, only
+//! properties of any input (no panic, errors that name the file, what is read
+//! round-trips), so it has no source of check values to name.
+#![no_main]
+
+libfuzzer_sys::fuzz_target!(|data: &[u8]| termsight::fuzzing::model(data));
