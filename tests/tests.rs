@@ -19,6 +19,7 @@ mod levels_cli;
 mod lines_cli;
 mod optimize_cli;
 mod optimize_reference;
+mod plasma_cli;
 mod plasma_synthetic;
 mod radial;
 mod radial_rydberg;

@@ -35,6 +35,10 @@ pub enum Command {
     /// Optimise level energies from accepted line assignments (weighted least squares),
     /// with Ritz wavenumbers and wavelengths.
     Optimize(super::optimize::OptimizeArgs),
+    /// Temperature and electron density of the plasma from assigned lines
+    /// (Boltzmann, Saha–Boltzmann, Stark widths of Hα and Hβ, McWhirter check).
+    #[command(long_about = super::plasma::LONG_ABOUT)]
+    Plasma(super::plasma::PlasmaArgs),
     /// Orbitals and radial integrals (E_av, F^k, G^k, R^k, ζ, ⟨r⟩) of configurations,
     /// from a self-consistent field; optionally a starting level model of them.
     Radial(super::radial::RadialArgs),

@@ -16,6 +16,7 @@ pub mod lines;
 pub mod optimize;
 pub mod output;
 pub mod paths;
+pub mod plasma;
 mod progress;
 pub mod radial;
 pub mod report;
@@ -52,6 +53,7 @@ pub fn run(cli: Cli) -> Result<(), CliError> {
         Command::Levels(args) => levels::run(args),
         Command::Lines(args) => lines::run(args),
         Command::Optimize(args) => optimize::run(args),
+        Command::Plasma(args) => plasma::run(args),
         Command::Radial(args) => radial::run(args),
         Command::Report(args) => report::run(args),
     }

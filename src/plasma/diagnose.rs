@@ -6,7 +6,7 @@ use std::collections::BTreeMap;
 
 use serde::Serialize;
 
-use super::lte::{LteCheck, lte_check};
+use super::lte::{DensitySource, LteCheck, lte_check};
 use super::partition::SpeciesLevels;
 use super::saha::{
     BoltzmannFit, LineData, Measured, PlotError, SahaBoltzmannFit, SahaMode, StagePair,
@@ -179,12 +179,12 @@ pub fn diagnose(
     // LTE checks that had no density of their own use the Stark density, then a
     // given one.
     let fallback = stark_density_cm3
-        .map(|m| (m.value, m.sigma))
+        .map(|m| (m.value, m.sigma, DensitySource::Stark))
         .or(match options.mode {
             SahaMode::GivenDensity {
                 density_cm3,
                 sigma_cm3,
-            } => Some((density_cm3, sigma_cm3)),
+            } => Some((density_cm3, sigma_cm3, DensitySource::Given)),
             _ => None,
         });
     for element in &mut elements {
@@ -325,10 +325,18 @@ fn lte_for(
     levels: &BTreeMap<u32, Result<SpeciesLevels, String>>,
 ) -> Option<LteCheck> {
     let saha = pairs.iter().find_map(|p| p.saha_boltzmann.result());
-    let (temperature_k, density, used): (f64, Option<(f64, f64)>, Vec<u32>) = match saha {
+    type Density = Option<(f64, f64, DensitySource)>;
+    let (temperature_k, density, used): (f64, Density, Vec<u32>) = match saha {
         Some(fit) => (
             fit.temperature_k.value,
-            Some((fit.density_cm3.value, fit.density_cm3.sigma)),
+            Some((
+                fit.density_cm3.value,
+                fit.density_cm3.sigma,
+                match fit.mode {
+                    SahaMode::GivenDensity { .. } => DensitySource::Given,
+                    _ => DensitySource::SahaBoltzmann,
+                },
+            )),
             vec![fit.neutral.charge, fit.ion.charge],
         ),
         None => {

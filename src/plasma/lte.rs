@@ -44,6 +44,29 @@ impl LteVerdict {
     }
 }
 
+/// Where the density of an LTE check comes from.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum DensitySource {
+    /// The element's own Saha–Boltzmann fit.
+    SahaBoltzmann,
+    /// The Stark widths of the Balmer lines.
+    Stark,
+    /// Given by the user.
+    Given,
+}
+
+impl DensitySource {
+    /// Name in outputs.
+    pub fn name(self) -> &'static str {
+        match self {
+            DensitySource::SahaBoltzmann => "saha-boltzmann",
+            DensitySource::Stark => "stark",
+            DensitySource::Given => "given",
+        }
+    }
+}
+
 /// The criterion at a fitted temperature beside a measured density.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
 pub struct LteCheck {
@@ -57,17 +80,20 @@ pub struct LteCheck {
     pub minimum_cm3: f64,
     /// Measured n_e and its σ, cm⁻³, when there is one.
     pub density_cm3: Option<(f64, f64)>,
+    /// Where that density comes from.
+    pub density_source: Option<DensitySource>,
     /// The verdict.
     pub verdict: LteVerdict,
 }
 
-/// Compare a density (value, σ) with the criterion.
+/// Compare a density (value, σ, where it comes from) with the criterion.
 pub fn lte_check(
     temperature_k: f64,
     gap_species: crate::notation::Species,
     gap_cm1: (f64, f64),
-    density_cm3: Option<(f64, f64)>,
+    density: Option<(f64, f64, DensitySource)>,
 ) -> LteCheck {
+    let density_cm3 = density.map(|(n, s, _)| (n, s));
     let minimum_cm3 = mcwhirter_minimum_cm3(temperature_k, gap_cm1.1 - gap_cm1.0);
     let verdict = match density_cm3 {
         None => LteVerdict::Unknown,
@@ -81,6 +107,7 @@ pub fn lte_check(
         gap_species,
         minimum_cm3,
         density_cm3,
+        density_source: density.map(|(_, _, source)| source),
         verdict,
     }
 }
@@ -106,10 +133,11 @@ mod tests {
     fn verdicts_follow_the_density_and_its_uncertainty() {
         let argon: crate::notation::Species = "Ar I".parse().unwrap();
         let gap = (0.0, EV_CM1);
-        let check = |n: Option<(f64, f64)>| lte_check(1e4, argon, gap, n).verdict;
-        assert_eq!(check(Some((1e15, 1e14))), LteVerdict::Met);
-        assert_eq!(check(Some((1e13, 1e12))), LteVerdict::NotMet);
-        assert_eq!(check(Some((1.6e14, 5e13))), LteVerdict::Marginal);
+        let given = DensitySource::Given;
+        let check = |n: Option<(f64, f64, DensitySource)>| lte_check(1e4, argon, gap, n).verdict;
+        assert_eq!(check(Some((1e15, 1e14, given))), LteVerdict::Met);
+        assert_eq!(check(Some((1e13, 1e12, given))), LteVerdict::NotMet);
+        assert_eq!(check(Some((1.6e14, 5e13, given))), LteVerdict::Marginal);
         assert_eq!(check(None), LteVerdict::Unknown);
     }
 }

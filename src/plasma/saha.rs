@@ -168,6 +168,32 @@ pub enum PlotError {
         /// Steps made.
         iterations: usize,
     },
+    /// Too few lines for a Boltzmann plot with an uncertainty from its scatter.
+    #[error(
+        "{lines} usable line(s) of {species}: a Boltzmann plot needs at least {needed} (a slope, an intercept and their scatter)"
+    )]
+    TooFewLines {
+        /// The spectrum.
+        species: Species,
+        /// Lines given.
+        lines: usize,
+        /// Lines needed.
+        needed: usize,
+    },
+    /// The upper levels span less than kT: the slope says little about T.
+    #[error(
+        "the upper levels of {species} span {spread_cm1:.0} cm-1, less than kT = {kt_cm1:.0} cm-1 at the fitted {temperature_k:.0} K: too small an energy spread for a temperature (lines from levels further apart are needed)"
+    )]
+    SmallSpread {
+        /// The spectrum.
+        species: Species,
+        /// Highest minus lowest upper-level energy, cm⁻¹.
+        spread_cm1: f64,
+        /// kT at the fitted temperature, cm⁻¹.
+        kt_cm1: f64,
+        /// The fitted temperature, K.
+        temperature_k: f64,
+    },
     /// A given value that is not a positive number.
     #[error("{name} = {value} is not a positive number")]
     BadGiven {
@@ -216,14 +242,42 @@ fn temperature(slope: f64, slope_sigma: f64) -> Result<Measured, PlotError> {
     })
 }
 
+/// Fewest lines of a Boltzmann plot: two parameters and one degree of freedom for
+/// the scatter.
+pub const MIN_BOLTZMANN_LINES: usize = 3;
+
 /// Fit the Boltzmann plot of one stage. Weights 1/σ_y² when every line has an
 /// intensity uncertainty (covariance scaled by the Birge ratio when larger than 1),
-/// else equal weights with the scatter setting the uncertainty. At least three lines
-/// with two upper levels.
+/// else equal weights with the scatter setting the uncertainty. At least
+/// [`MIN_BOLTZMANN_LINES`] lines with two upper levels, spanning at least kT at the
+/// fitted temperature (common practice, no source: a plot over less than kT has a
+/// slope dominated by the scatter; texts ask for "a wide range of upper-level
+/// energies", e.g. Aragón & Aguilera 2008, §3, from memory).
 pub fn boltzmann_fit(species: Species, lines: &[LineData]) -> Result<BoltzmannFit, PlotError> {
+    if lines.len() < MIN_BOLTZMANN_LINES {
+        return Err(PlotError::TooFewLines {
+            species,
+            lines: lines.len(),
+            needed: MIN_BOLTZMANN_LINES,
+        });
+    }
     let (points, stated) = weighted(lines, |l| l.upper_energy_cm1);
     let fit = fit_parallel_lines(&[&points], scale(stated))?;
     let temperature_k = temperature(fit.slope, fit.slope_sigma())?;
+    let (low, high) = points
+        .iter()
+        .fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), p| {
+            (a.min(p.x), b.max(p.x))
+        });
+    let kt_cm1 = temperature_k.value / SECOND_RADIATION_CM_K;
+    if high - low < kt_cm1 {
+        return Err(PlotError::SmallSpread {
+            species,
+            spread_cm1: high - low,
+            kt_cm1,
+            temperature_k: temperature_k.value,
+        });
+    }
     let intercept = fit.intercepts.first().copied().unwrap_or(0.0);
     let plot = lines
         .iter()

@@ -21,6 +21,9 @@
 //! sources; [`fit_table`] and [`fit_json`] write it.
 //! For `termsight radial`, a [`RadialReport`] holds the orbitals and integrals of
 //! the configurations; [`radial_table`] and [`radial_json`] write it.
+//! For `termsight plasma`, a [`crate::plasma::diagnose::Diagnosis`] with its
+//! [`PlasmaInput`] is written by [`plasma_table`], [`plasma_csv`],
+//! [`plasma_points_csv`] and [`plasma_json`].
 
 mod assign_csv;
 mod assign_json;
@@ -64,12 +67,13 @@ pub use optimize::{
     OPTIMIZED_LEVEL_EXTRA_COLUMNS, OPTIMIZED_LINE_COLUMNS, OptimizeContext, blend_loss_text,
     optimize_description, optimize_json, optimize_table, optimized_levels_csv, optimized_lines_csv,
 };
+pub use plasma::{
+    PLASMA_COLUMNS, PLASMA_POINT_COLUMNS, PlasmaInput, plasma_csv, plasma_json, plasma_points_csv,
+    plasma_table,
+};
 pub use radial::{
     ConfigurationReport, NONRELATIVISTIC_LIMIT_Z, OrbitalReport, RadialReport, radial_json,
     radial_table, relativistic_note,
-};
-pub use plasma::{
-    PLASMA_COLUMNS, PLASMA_POINT_COLUMNS, plasma_csv, plasma_json, plasma_points_csv, plasma_table,
 };
 
 /// What the outputs say about the measured line list.
