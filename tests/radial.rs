@@ -160,7 +160,10 @@ fn starting_model_of_helium_runs_through_levels_and_lines() {
     // model's 2³S is E_av − 0.85 G⁰/2 from E_av orbitals, not the ³S Hartree–Fock
     // energy: 0.0015 hartree = 340 cm⁻¹ above it here, so 600 cm⁻¹.
     let deficit = helium_level("1s.2s", "3S", "1") - energy("1s.2s 3S", "1");
-    assert!((deficit - 9013.0).abs() < 600.0, "1s2s ³S deficit {deficit}");
+    assert!(
+        (deficit - 9013.0).abs() < 600.0,
+        "1s2s ³S deficit {deficit}"
+    );
 
     let lines = termsight(&["lines", model, "--format", "csv"]);
     assert!(
@@ -183,7 +186,10 @@ fn starting_model_of_helium_runs_through_levels_and_lines() {
     // orbitals give 0.32.
     let published = 0.2762;
     let gf: f64 = resonance[column("gf")].parse().unwrap();
-    assert!((gf / published - 1.0).abs() < 0.25, "gf {gf}, published {published}");
+    assert!(
+        (gf / published - 1.0).abs() < 0.25,
+        "gf {gf}, published {published}"
+    );
     // Regression pin (our own output): 1.17 of the published value.
     assert!((gf / published - 1.17).abs() < 0.05, "gf {gf}");
 }

@@ -17,8 +17,8 @@ use clap::ValueEnum;
 
 use crate::notation::{Configuration, Species, element};
 use crate::radial::{
-    GridRemedy, GridSpec, PairMixing, RadialError, ScaleFactors, ScfObserver, ScfOptions, ScfProgress,
-    ScfSolution, ScfStage, hartree_fock, local_exchange, model_file, radial_integrals,
+    GridRemedy, GridSpec, PairMixing, RadialError, ScaleFactors, ScfObserver, ScfOptions,
+    ScfProgress, ScfSolution, ScfStage, hartree_fock, local_exchange, model_file, radial_integrals,
     screened_hydrogenic, starting_model,
 };
 use crate::report::{RadialReport, radial_json, radial_table, relativistic_note};

@@ -610,7 +610,11 @@ mod tests {
         let g1 = list.iter().find(|i| i.name == "G1(3s,3p)").unwrap();
         let observed = 35051.264 - (21850.405 + 3.0 * 21870.464 + 5.0 * 21911.178) / 9.0;
         let ratio = 2.0 / 3.0 * g1.scaled / observed;
-        assert!((0.5..2.0).contains(&ratio), "G1 {} ratio {ratio}", g1.scaled);
+        assert!(
+            (0.5..2.0).contains(&ratio),
+            "G1 {} ratio {ratio}",
+            g1.scaled
+        );
     }
 
     #[test]

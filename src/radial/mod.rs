@@ -70,8 +70,8 @@ pub use integrals::{IntegralKind, RadialIntegral, ScaleFactors, radial_integrals
 pub use level_model::{model_file, starting_model};
 pub use local_exchange::local_exchange;
 pub use scf::{
-    Method, Orbital, PairMixing, ScfObserver, ScfOptions, ScfProgress, ScfSolution, ScfStage, Silent,
-    screened_hydrogenic,
+    Method, Orbital, PairMixing, ScfObserver, ScfOptions, ScfProgress, ScfSolution, ScfStage,
+    Silent, screened_hydrogenic,
 };
 pub use term::PairSpin;
 
