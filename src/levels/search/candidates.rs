@@ -469,7 +469,7 @@ fn segments(problem: &Problem, sorted: &[Point], slab: &Slab) -> Vec<Segment> {
         while energy(density_high) <= e - t + h {
             density_high += 1;
         }
-        let others = (density_high - density_low).saturating_sub(count).max(1);
+        let others = (density_high - density_low).saturating_sub(count) + 2;
         let rho = others as f64 / (2.0 * h);
         if !problem.may_report(count, rho) {
             continue;

@@ -28,9 +28,8 @@
 //! 1 − (1 − p)^N, which equals N·p where that is small and stays below 1 (the N
 //! trials taken as independent). ρ is counted in a window ±F·t_max around the
 //! candidate (F the density window factor, t_max the largest tolerance k·u_c of the
-//! search), the pairs that hold the candidate's energy left out and
-//! no fewer than one counted (a window can show no finer density than one point),
-//! over the window's length cut at E = 0.
+//! search), the pairs that hold the candidate's energy left out and two added (see
+//! [`density`]), over the window's length cut at E = 0.
 
 use statrs::function::gamma::{checked_gamma_lr, ln_gamma};
 
@@ -81,7 +80,8 @@ pub fn cluster_probability(lines: usize, expected: f64, span_fraction: f64) -> f
     } else {
         span_fraction.clamp(0.0, 1.0)
     };
-    let p = poisson_tail(others + 1, expected) + poisson_pmf(others, expected) * f.powi(others as i32);
+    let p =
+        poisson_tail(others + 1, expected) + poisson_pmf(others, expected) * f.powi(others as i32);
     p.clamp(0.0, 1.0)
 }
 
@@ -95,12 +95,21 @@ pub fn with_look_elsewhere(p: f64, trials: usize) -> f64 {
     (-(n * (-p).ln_1p()).exp_m1()).clamp(0.0, 1.0)
 }
 
-/// The density ρ of candidate energies, per cm⁻¹: `in_window` points counted in
-/// ±`half_window` around `center`, `own` of them the candidate's, over the
-/// window's length cut at E = 0 (and never below `half_window`).
+/// The density ρ of candidate energies, per cm⁻¹: (m + 2)/L for the m = `in_window`
+/// − `own` points counted in ±`half_window` around `center` that are not the
+/// candidate's, over the window's length L cut at E = 0 (and never below
+/// `half_window`).
+///
+/// The two points added keep the chance probability valid although ρ is itself
+/// estimated from a count: p grows as ρ^(n−1) for small λ, and a count m below its
+/// mean μ makes p too small more than one above it makes it too large. For m
+/// Poisson with mean μ, the mean of (μ/(m + 2))^k is below 1 for k = 2 and 3 (the
+/// candidates of 3 and 4 lines that chance makes most) at every μ ≥ 8 and falls
+/// with μ (0.87 and 0.96 at μ = 8.6, 0.95 and 1.00 at μ = 20; computed with scipy
+/// poisson.pmf), where m alone gives 1.71 and 3.89 at μ = 8.6.
 pub fn density(in_window: usize, own: usize, center: f64, half_window: f64) -> f64 {
     let length = ((center + half_window) - (center - half_window).max(0.0)).max(half_window);
-    in_window.saturating_sub(own).max(1) as f64 / length
+    (in_window.saturating_sub(own) + 2) as f64 / length
 }
 
 #[cfg(test)]
@@ -198,11 +207,11 @@ mod tests {
 
     #[test]
     fn density_cut_at_zero_and_floored() {
-        // 11 points in ±10 around 100, 3 the candidate's: 8 per 20 cm⁻¹.
-        assert_eq!(density(11, 3, 100.0, 10.0), 0.4);
+        // 11 points in ±10 around 100, 3 the candidate's: 8 + 2 per 20 cm⁻¹.
+        assert_eq!(density(11, 3, 100.0, 10.0), 0.5);
         // Around 5, the window is cut at 0: length 15.
-        assert_eq!(density(4, 1, 5.0, 10.0), 0.2);
-        // No other point: one counted.
-        assert_eq!(density(3, 3, 100.0, 10.0), 0.05);
+        assert_eq!(density(4, 1, 5.0, 10.0), 1.0 / 3.0);
+        // No other point: the two added.
+        assert_eq!(density(3, 3, 100.0, 10.0), 0.1);
     }
 }
