@@ -122,6 +122,77 @@ fn finds_the_left_out_neon_level_and_assign_uses_it() {
 }
 
 #[test]
+fn csv_rows_append_to_a_table_with_the_status_column() {
+    // The compiled table as shipped has eight columns, energy_status the last
+    // (reference-levels/NeI.csv): the CSV takes that column too when the table
+    // given has it, and the table with the rows appended reads again.
+    let dir = tempfile::tempdir().unwrap();
+    let text = std::fs::read_to_string(root().join("reference-levels/NeI.csv")).unwrap();
+    let kept: Vec<&str> = text
+        .lines()
+        .filter(|l| !l.starts_with("Ne I,2s2.2p5.(2P°<3/2>).3p,2[3/2],1,"))
+        .collect();
+    let ne = dir.path().join("ne8.csv");
+    std::fs::write(&ne, kept.join("\n") + "\n").unwrap();
+    let ne = ne.to_str().unwrap();
+    let lines = root().join("examples/he-ne-teaching-tube/lines.csv");
+    let assigned = dir.path().join("assigned.csv");
+    let out = termsight(&[
+        "assign",
+        lines.to_str().unwrap(),
+        "--levels",
+        ne,
+        "--species",
+        "He I",
+        "--species",
+        "H I",
+        "--format",
+        "csv",
+        "-o",
+        assigned.to_str().unwrap(),
+    ]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let csv = termsight(&[
+        "find-levels",
+        assigned.to_str().unwrap(),
+        "--levels",
+        ne,
+        "--format",
+        "csv",
+    ]);
+    let csv = String::from_utf8(csv.stdout).unwrap();
+    assert!(
+        csv.starts_with(
+            "species,configuration,term,J,energy_cm1,uncertainty_cm1,source,energy_status\n"
+        ),
+        "{csv}"
+    );
+    let mut table_text = std::fs::read_to_string(ne).unwrap();
+    for line in csv.lines().skip(1) {
+        table_text.push_str(line);
+        table_text.push('\n');
+    }
+    std::fs::write(ne, table_text).unwrap();
+    let again = termsight(&[
+        "find-levels",
+        assigned.to_str().unwrap(),
+        "--levels",
+        ne,
+        "--format",
+        "json",
+    ]);
+    assert!(
+        again.status.success(),
+        "{}",
+        String::from_utf8_lossy(&again.stderr)
+    );
+}
+
+#[test]
 fn errors_name_what_is_wrong() {
     let out = termsight(&["find-levels", "no-such-file.csv", "--species", "Ne I"]);
     assert_eq!(out.status.code(), Some(2));

@@ -75,7 +75,9 @@ pub struct FindLevelsArgs {
     pub density_window: f64,
 
     /// Output format: a table to read; CSV in the columns of a level table (one row
-    /// per candidate and allowed J), to append to your level table; or JSON.
+    /// per candidate and allowed J), to append to your level table; or JSON. The CSV
+    /// has the eighth column energy_status (empty) when the known levels are a
+    /// compiled table or every --levels file has that column.
     #[arg(long, value_enum, default_value_t = FindFormat::Table)]
     pub format: FindFormat,
 
@@ -138,6 +140,7 @@ const PROGRESS_ABOVE: usize = 8;
 pub fn run(args: FindLevelsArgs) -> Result<(), CliError> {
     let config = search_config(&args)?;
     let (species, levels, level_source) = known_levels(&args)?;
+    let status_column = args.levels.is_empty() || args.levels.iter().all(|p| has_status_column(p));
     let (lines, line_source) = read_lines(&args)?;
     let mut progress = |p: SearchProgress| {
         if p.total > PROGRESS_ABOVE && p.done < p.total {
@@ -157,6 +160,7 @@ pub fn run(args: FindLevelsArgs) -> Result<(), CliError> {
         levels: &levels,
         species,
         sources: &sources,
+        status_column,
     };
     let bytes = match args.format {
         FindFormat::Table => level_search_table(&report).into_bytes(),
@@ -248,6 +252,27 @@ fn known_levels(args: &FindLevelsArgs) -> Result<(Species, Vec<Level>, String), 
     }
 }
 
+/// Whether the level table at `path` has the column `energy_status` (as the compiled
+/// tables have): its header, the first line neither blank nor a `#` comment, names
+/// it. False when the file cannot be read (it has been read once already).
+fn has_status_column(path: &std::path::Path) -> bool {
+    std::fs::read_to_string(path).is_ok_and(|text| header_names_status(&text))
+}
+
+/// Whether the header of a level table's text names the column `energy_status`.
+fn header_names_status(text: &str) -> bool {
+    text.lines()
+        .map(str::trim)
+        .find(|l| !l.is_empty() && !l.starts_with('#'))
+        .is_some_and(|h| {
+            h.split(',').any(|c| {
+                c.trim()
+                    .trim_matches('"')
+                    .eq_ignore_ascii_case("energy_status")
+            })
+        })
+}
+
 /// Whether the text is an assign CSV: its header (the first line that is neither
 /// blank nor a `#` comment) names the columns `rank` and `observed_wavenumber_cm1`.
 fn is_assign_csv(text: &[u8]) -> bool {
@@ -329,6 +354,19 @@ fn read_lines(args: &FindLevelsArgs) -> Result<(Vec<SearchLine>, String), CliErr
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn finds_the_status_column_of_a_level_table() {
+        // The compiled tables' header (reference-levels/*.csv) has it; the seven
+        // columns of a level table alone do not.
+        assert!(header_names_status(
+            "# He I levels\nspecies,configuration,term,J,energy_cm1,uncertainty_cm1,source,energy_status\n"
+        ));
+        assert!(!header_names_status(
+            "species,configuration,term,J,energy_cm1,uncertainty_cm1,source\nHe I,,x,1,1,1,energy_status\n"
+        ));
+        assert!(!header_names_status(""));
+    }
 
     #[test]
     fn tells_an_assign_csv_from_a_line_list() {

@@ -21,6 +21,10 @@ pub struct LevelSearchReport<'a> {
     pub species: Species,
     /// Where the lines and the levels came from, one sentence each.
     pub sources: &'a [String],
+    /// Write the CSV with the eighth column `energy_status` of the compiled tables
+    /// (empty for a candidate: its energy is from observed lines), so that its rows
+    /// append to a table that has that column.
+    pub status_column: bool,
 }
 
 /// Decimals that show two significant digits of an uncertainty `u` (4 when `u` is
@@ -223,11 +227,15 @@ pub fn level_search_table(report: &LevelSearchReport<'_>) -> String {
 /// The CSV of `termsight find-levels`: the columns of a level table
 /// ([`LEVEL_COLUMNS`]), one row per candidate and allowed J (the term is the
 /// energy rounded down with the parity, the configuration blank), each candidate
-/// opened by a `#` comment line; the rows after the header can be appended to a
-/// level table with the same columns.
+/// opened by a `#` comment line; with [`LevelSearchReport::status_column`], the
+/// column `energy_status` (empty) after them. The rows after the header can be
+/// appended to a level table with the same columns.
 pub fn level_search_csv(report: &LevelSearchReport<'_>) -> Vec<u8> {
     let mut out = Vec::new();
     out.extend_from_slice(LEVEL_COLUMNS.join(",").as_bytes());
+    if report.status_column {
+        out.extend_from_slice(b",energy_status");
+    }
     out.push(b'\n');
     for (rank, c) in report.search.candidates.iter().enumerate() {
         let d = decimals(c.uncertainty_cm1);
@@ -270,7 +278,7 @@ pub fn level_search_csv(report: &LevelSearchReport<'_>) -> Vec<u8> {
             .from_writer(Vec::new());
         for j in &c.allowed_j {
             // Writing to a Vec cannot fail.
-            let _ = writer.write_record([
+            let mut record = vec![
                 report.species.to_string(),
                 String::new(),
                 candidate_term(c).to_string(),
@@ -278,7 +286,11 @@ pub fn level_search_csv(report: &LevelSearchReport<'_>) -> Vec<u8> {
                 format!("{:.d$}", c.energy_cm1),
                 format!("{:.d$}", c.uncertainty_cm1),
                 source.clone(),
-            ]);
+            ];
+            if report.status_column {
+                record.push(String::new());
+            }
+            let _ = writer.write_record(&record);
         }
         if let Ok(bytes) = writer.into_inner() {
             out.extend_from_slice(&bytes);

@@ -8,8 +8,14 @@
 //! position and, per line, how many of them it has; at each peak of the count of
 //! distinct lines (the last start before an end) the set is a cluster to judge.
 //! The sweep is the classic one for the deepest overlap of intervals (e.g. de Berg
-//! et al. 2008, *Computational Geometry*, ch. 10, cited from memory); sorting makes
-//! it O(P log P) for P pairs.
+//! et al. 2008, *Computational Geometry*, ch. 10, cited from memory).
+//!
+//! The candidate energies are sorted once per slab by a distribution sort, O(P)
+//! for P pairs; a linear pass over them with three moving bounds finds where a
+//! cluster could be reported at all (enough pairs within 2t, a density low enough),
+//! and only there are interval ends sorted and swept. In a large search this leaves
+//! out nearly every pair: random pairs make many small peaks, none of them
+//! reportable.
 //!
 //! The window is cut into slabs so that the pairs of one slab (a few million)
 //! are in memory at a time; each slab also forms the pairs within a margin around
@@ -243,7 +249,9 @@ impl Problem {
                     };
                     out.push(Point {
                         energy: known.energy + sign * l.sigma,
-                        uncertainty: l.uncertainty.hypot(known.uncertainty),
+                        uncertainty: (l.uncertainty * l.uncertainty
+                            + known.uncertainty * known.uncertainty)
+                            .sqrt(),
                         line: line as u32,
                         level: level as u32,
                         upper: sign > 0.0,
@@ -251,17 +259,76 @@ impl Problem {
                 }
             }
         }
-        out.sort_unstable_by(|a, b| a.energy.total_cmp(&b.energy));
-        out
+        sort_by_energy(out)
     }
+}
+
+/// The points sorted by energy: distributed into about one bucket per four points
+/// by energy, then each bucket sorted (distribution sorting; Knuth 1998, *The Art
+/// of Computer Programming*, vol. 3, § 5.2.5, cited from memory). The candidate
+/// energies of a slab spread fairly evenly over it, so the buckets stay small and
+/// the sort takes O(P) rather than the O(P log P) of a comparison sort, which was
+/// most of the time of a large search. Written here because the project's
+/// dependencies have no sort of this kind.
+fn sort_by_energy(points: Vec<Point>) -> Vec<Point> {
+    let (low, high) = points.iter().fold((f64::MAX, f64::MIN), |(lo, hi), p| {
+        (lo.min(p.energy), hi.max(p.energy))
+    });
+    let buckets = (points.len() / 4).max(1);
+    let scale = if high > low {
+        (buckets as f64 - 1.0) / (high - low)
+    } else {
+        0.0
+    };
+    let bucket = |e: f64| -> usize {
+        let b = ((e - low) * scale).floor();
+        if b.is_finite() && b > 0.0 {
+            (b as usize).min(buckets - 1)
+        } else {
+            0
+        }
+    };
+    // starts[b] = first place of bucket b in the output.
+    let mut starts = vec![0usize; buckets + 1];
+    for p in &points {
+        if let Some(c) = starts.get_mut(bucket(p.energy) + 1) {
+            *c += 1;
+        }
+    }
+    for b in 1..starts.len() {
+        let before = starts.get(b - 1).copied().unwrap_or(0);
+        if let Some(c) = starts.get_mut(b) {
+            *c += before;
+        }
+    }
+    let mut next = starts.clone();
+    let mut sorted = points.clone();
+    for p in points {
+        let b = bucket(p.energy);
+        if let Some(at) = next.get_mut(b) {
+            if let Some(slot) = sorted.get_mut(*at) {
+                *slot = p;
+            }
+            *at += 1;
+        }
+    }
+    for pair in starts.windows(2) {
+        if let [a, b] = *pair
+            && let Some(slice) = sorted.get_mut(a..b)
+        {
+            slice.sort_unstable_by(|x, y| x.energy.total_cmp(&y.energy));
+        }
+    }
+    sorted
 }
 
 /// The largest λ at which `n` lines reach a chance probability of at most `max_p`
 /// among `trials` candidate energies (bisection on log λ; the probability grows with
 /// λ), made a little larger so that rounding never drops a reportable peak.
 fn lambda_limit(n: usize, trials: usize, max_p: f64) -> f64 {
-    use super::significance::{local_probability, with_look_elsewhere};
-    let p = |lambda: f64| with_look_elsewhere(local_probability(n, lambda), trials);
+    use super::significance::{cluster_probability, with_look_elsewhere};
+    // The tightest cluster (span 0) has the lowest probability.
+    let p = |lambda: f64| with_look_elsewhere(cluster_probability(n, lambda, 0.0), trials);
     let (mut low, mut high) = (-700.0f64, 30.0f64); // ln λ
     if p(high.exp()) <= max_p {
         return f64::INFINITY;
@@ -337,29 +404,127 @@ pub(crate) fn sweep_all(
 }
 
 /// Sweep one slab: the clusters whose peak lies in it.
+///
+/// Only the parts of the slab where a reportable cluster may sit are swept
+/// ([`segments`]); in a large search almost every peak of chance pairs is far too
+/// likely to be reported, and sorting the interval ends of every pair was most of
+/// the time.
 fn sweep(problem: &Problem, slab: &Slab) -> Vec<Cluster> {
     let config = &problem.config;
-    let k = config.tolerance_sigma();
     let margin = problem.max_tolerance() * (1.0 + config.density_window_factor());
     let points = problem.points(slab.parity, slab.low - margin, slab.high + margin);
+    let mut per_line = vec![0u32; problem.lines.len()];
+    let mut out = Vec::new();
+    for segment in segments(problem, &points, slab) {
+        sweep_segment(problem, slab, &points, &segment, &mut per_line, &mut out);
+    }
+    out
+}
+
+/// A run of the sorted points to sweep: every point with an energy in
+/// [`low`, `high`], of which the peaks in [low + 3t, high − t] are judged (t the
+/// largest tolerance): there the run holds every interval that contains the peak
+/// and every interval end just before it, so the sweep of the run sees the peak as
+/// the sweep of the whole slab would.
+#[derive(Debug, Clone, PartialEq)]
+struct Segment {
+    points: std::ops::Range<usize>,
+    low: f64,
+    high: f64,
+}
+
+/// The segments of `sorted` (the slab's points by energy) where a peak may give a
+/// reported candidate. A peak at x has a lowest point i among the pairs holding x,
+/// x within t of E_i; its pairs all lie in [E_i, E_i + 2t], so their number c_i
+/// there bounds its lines, and its density window holds every point of
+/// [E_i + t − H, E_i − t + H] (H the half-width of the density window), which bounds
+/// its density from below. Where even c_i lines at that density and at the
+/// narrowest spread of the search are too likely by chance, no peak with lowest
+/// point i is reported; the others give the segment [E_i − 4.5t, E_i + 4.5t],
+/// merged where they overlap.
+fn segments(problem: &Problem, sorted: &[Point], slab: &Slab) -> Vec<Segment> {
+    let t = problem.max_tolerance();
+    let h = problem.density_half_window();
+    let energy = |i: usize| sorted.get(i).map_or(f64::INFINITY, |p| p.energy);
+    let (mut window_end, mut density_low, mut density_high) = (0usize, 0usize, 0usize);
+    let reach = 4.5 * t;
+    let mut out: Vec<Segment> = Vec::new();
+    for (i, p) in sorted.iter().enumerate() {
+        let e = p.energy;
+        if e < slab.low - 2.0 * t || e > slab.high + t {
+            continue;
+        }
+        window_end = window_end.max(i);
+        while energy(window_end) <= e + 2.0 * t {
+            window_end += 1;
+        }
+        let count = window_end - i;
+        if count < problem.config.min_lines() {
+            continue;
+        }
+        while energy(density_low) < e + t - h {
+            density_low += 1;
+        }
+        density_high = density_high.max(density_low);
+        while energy(density_high) <= e - t + h {
+            density_high += 1;
+        }
+        let others = (density_high - density_low).saturating_sub(count) + 2;
+        let rho = others as f64 / (2.0 * h);
+        if !problem.may_report(count, rho) {
+            continue;
+        }
+        match out.last_mut() {
+            Some(last) if e - reach <= last.high => last.high = e + reach,
+            _ => out.push(Segment {
+                points: 0..0,
+                low: e - reach,
+                high: e + reach,
+            }),
+        }
+    }
+    for segment in &mut out {
+        let start = sorted.partition_point(|p| p.energy < segment.low);
+        let end = sorted.partition_point(|p| p.energy <= segment.high);
+        segment.points = start..end.max(start);
+    }
+    out
+}
+
+/// Sweep one segment of the slab's sorted points, adding its clusters to `out`.
+/// `per_line` (zero on entry, zero again on return) counts the active pairs per
+/// line.
+fn sweep_segment(
+    problem: &Problem,
+    slab: &Slab,
+    points: &[Point],
+    segment: &Segment,
+    per_line: &mut [u32],
+    out: &mut Vec<Cluster>,
+) {
+    let config = &problem.config;
+    let k = config.tolerance_sigma();
+    let t = problem.max_tolerance();
+    let (judge_low, judge_high) = (segment.low + 3.0 * t, segment.high - t);
+    let Some(run) = points.get(segment.points.clone()) else {
+        return;
+    };
     // Interval ends: (position, end?, point); starts sort before ends at one position
     // so that touching intervals overlap.
-    let mut events: Vec<(f64, bool, u32)> = Vec::with_capacity(2 * points.len());
-    for (i, p) in points.iter().enumerate() {
-        let t = k * p.uncertainty;
-        events.push((p.energy - t, false, i as u32));
-        events.push((p.energy + t, true, i as u32));
+    let mut events: Vec<(f64, bool, u32)> = Vec::with_capacity(2 * run.len());
+    for (i, p) in run.iter().enumerate() {
+        let tol = k * p.uncertainty;
+        events.push((p.energy - tol, false, i as u32));
+        events.push((p.energy + tol, true, i as u32));
     }
     events.sort_unstable_by(|a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)).then(a.2.cmp(&b.2)));
 
-    let mut per_line = vec![0u32; problem.lines.len()];
     let mut distinct = 0usize;
     let mut active: Vec<u32> = Vec::new();
-    let mut slot = vec![u32::MAX; points.len()];
+    let mut slot = vec![u32::MAX; run.len()];
     let mut rising = false;
-    let mut out = Vec::new();
     for &(position, end, i) in &events {
-        let Some(point) = points.get(i as usize) else {
+        let Some(point) = run.get(i as usize) else {
             continue;
         };
         let line = point.line as usize;
@@ -379,20 +544,22 @@ fn sweep(problem: &Problem, slab: &Slab) -> Vec<Cluster> {
         }
         if rising
             && distinct >= config.min_lines()
+            && position >= judge_low
+            && position <= judge_high
             && position >= slab.low
             && position < slab.high
             && position >= problem.range.0
             && position <= problem.range.1
             && problem.may_report(
                 distinct,
-                peak_density(problem, &points, position, active.len()),
+                peak_density(problem, points, position, active.len()),
             )
         {
             let members: Vec<Point> = active
                 .iter()
-                .filter_map(|&a| points.get(a as usize).copied())
+                .filter_map(|&a| run.get(a as usize).copied())
                 .collect();
-            if let Some(cluster) = build(problem, slab.parity, members, position, &points) {
+            if let Some(cluster) = build(problem, slab.parity, members, position, points) {
                 out.push(cluster);
             }
         }
@@ -417,7 +584,6 @@ fn sweep(problem: &Problem, slab: &Slab) -> Vec<Cluster> {
             }
         }
     }
-    out
 }
 
 /// The density of pairs around `peak`, the `own` pairs of the peak left out: as

@@ -236,8 +236,10 @@ pub struct CandidateLevel {
     /// Weighted mean energy, cm⁻¹: Σ(E_i/u_i²)/Σ(1/u_i²) over the supports'
     /// candidate energies E_i with their combined uncertainties u_i.
     pub energy_cm1: f64,
-    /// Its standard uncertainty, (Σ 1/u_i²)^(−1/2), cm⁻¹ (the supports taken as
-    /// independent: the uncertainty of a known level shared by no two of them).
+    /// Its standard uncertainty, (Σ 1/u_i²)^(−1/2), cm⁻¹, times the Birge ratio
+    /// √(χ²/(n − 1)) of the supports about the mean where that exceeds 1 (the
+    /// supports taken as independent: the uncertainty of a known level shared by
+    /// no two of them).
     pub uncertainty_cm1: f64,
     /// Parity: the opposite of the supporting levels'.
     pub parity: Parity,
@@ -249,8 +251,9 @@ pub struct CandidateLevel {
     /// Expected number of other candidate energies within the candidate's spread
     /// by chance, λ = ρ·2t (ρ the local density, t the largest tolerance k·u_c).
     pub expected_by_chance: f64,
-    /// Probability that at least n − 1 candidate energies fall by chance within 2t
-    /// of a given one: the Poisson tail P(X ≥ n − 1; λ).
+    /// Probability that a candidate energy starts, by chance, a cluster as extreme:
+    /// n or more lines within 2t, or n lines within the candidate's span s,
+    /// P(X ≥ n; λ) + P(X = n − 1; λ)·(s/2t)^(n−1) (see [`significance`]).
     pub local_probability: f64,
     /// The chance probability with the look-elsewhere factor: 1 − (1 − p)^N, p the
     /// local probability and N the number of candidate energies in the search.

@@ -204,11 +204,11 @@ proptest! {
 fn chance_probabilities_are_valid_on_random_lines() {
     // Lines at random positions only (seeded): the fraction of searches with a
     // candidate at P ≤ α must be at most α (the definition of a valid p-value;
-    // common practice, no source), for several α. 400 searches of 300 lines
+    // common practice, no source), for several α. 1000 searches of 300 lines
     // against 2 × 40 invented levels.
-    let searches = 400;
-    let alphas = [0.01, 0.05, 0.1, 0.3];
-    let mut hits = [0usize; 4];
+    let searches = 1000;
+    let alphas = [0.003, 0.01, 0.03, 0.05, 0.1, 0.3];
+    let mut hits = [0usize; 6];
     let config = SearchConfig::default()
         .with_max_chance_probability(1.0)
         .unwrap();
