@@ -75,7 +75,10 @@ fn the_report_of_the_shipped_example_shows_in_a_headless_browser() {
     let Some(browser) = chromium() else {
         let message = "browser test: no Chromium found (set TERMSIGHT_CHROMIUM, or install \
                        Debian's chromium as .ci/run does)";
-        assert!(std::env::var_os("CI").is_none(), "{message}; CI must have it");
+        assert!(
+            std::env::var_os("CI").is_none(),
+            "{message}; CI must have it"
+        );
         println!("{message}: SKIPPED");
         return;
     };
@@ -98,7 +101,14 @@ fn the_report_of_the_shipped_example_shows_in_a_headless_browser() {
     );
     let html = std::fs::read_to_string(&page).unwrap();
     // Self-contained (the issue's condition): nothing is fetched from elsewhere.
-    for outside in ["<script", "src=\"http", "href=\"http", "<link", "@import", "url("] {
+    for outside in [
+        "<script",
+        "src=\"http",
+        "href=\"http",
+        "<link",
+        "@import",
+        "url(",
+    ] {
         assert!(!html.contains(outside), "the page contains {outside:?}");
     }
     let png = dir.path().join("report.png");
