@@ -152,7 +152,7 @@ pub fn boltzmann_from_records(
         let intensity = r.observed_intensity.filter(|i| *i > 0.0)?;
         let ga = c.ga_s1.filter(|g| *g > 0.0)?;
         let sigma = c.predicted_wavenumber_cm1;
-        if !(sigma > 0.0) {
+        if sigma.is_nan() || sigma <= 0.0 {
             return None;
         }
         Some((
