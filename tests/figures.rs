@@ -8,12 +8,13 @@ use std::process::Command;
 
 use termsight::levels::LevelLabel;
 use termsight::notation::{HalfInt, Parity};
+use termsight::plasma::{BoltzmannPoint, IntensityUnits, fit_boltzmann};
 use termsight::report::figures::{
-    AssignedStick, BoltzmannPlot, BoltzmannPoint, DiagramLevel, DiagramTransition, ExtraLevel,
-    FitResidual, FitResiduals, ModelSpectrumFigure, ModelStick, ObservedStick, PredictedStick,
-    RitzResidual, RitzResiduals, SECOND_RADIATION_CONSTANT_CM_K, SpectrumAxis, StickSpectrum,
-    StickWindow, TermDiagram, boltzmann_svg, fit_boltzmann, fit_residuals_svg, model_spectrum_svg,
-    ritz_residuals_svg, stick_spectrum_svg, term_diagram_svg,
+    AssignedStick, BoltzmannPlot, DiagramLevel, DiagramTransition, ExtraLevel, FitResidual,
+    FitResiduals, ModelSpectrumFigure, ModelStick, ObservedStick, PredictedStick, RitzResidual,
+    RitzResiduals, SECOND_RADIATION_CONSTANT_CM_K, SpectrumAxis, StickSpectrum, StickWindow,
+    TermDiagram, boltzmann_svg, fit_residuals_svg, model_spectrum_svg, ritz_residuals_svg,
+    stick_spectrum_svg, term_diagram_svg,
 };
 use termsight::units::AirFormula;
 
@@ -196,26 +197,36 @@ fn stick() -> StickSpectrum {
 }
 
 fn boltzmann() -> BoltzmannPlot {
-    // Invented demo points near T = 8000 K.
-    let points: Vec<BoltzmannPoint> = [
-        (150_000.0, 0.1),
-        (151_000.0, -0.1),
-        (153_000.0, -0.5),
-        (155_000.0, -0.8),
-    ]
-    .iter()
-    .map(|&(e, d)| BoltzmannPoint {
-        upper_energy_cm1: e,
-        ordinate: 30.0 - e * SECOND_RADIATION_CONSTANT_CM_K / 8000.0 + d * 0.1,
-        sigma: None,
-        blend: e > 154_000.0,
-    })
-    .collect();
+    // Invented demo points near T = 8000 K (±0.05 alternating), the fourth 3 below
+    // the line (30 σ_y: a self-absorbed line).
+    let points: Vec<BoltzmannPoint> = (0..8)
+        .map(|i| {
+            let e = 150_000.0 + 2500.0 * f64::from(i);
+            let noise = if i % 2 == 0 { 0.05 } else { -0.05 };
+            let off = if i == 3 { -3.0 } else { 0.0 };
+            BoltzmannPoint {
+                upper_energy_cm1: e,
+                y: 30.0 - e * SECOND_RADIATION_CONSTANT_CM_K / 8000.0 + noise + off,
+                y_sigma: 0.1,
+                observed: i as usize,
+                used: true,
+            }
+        })
+        .collect();
+    let fit = fit_boltzmann(points).unwrap();
     BoltzmannPlot {
         source: "demo.csv".into(),
         species: "Ne I".into(),
-        fit: fit_boltzmann(&points),
-        points,
+        units: IntensityUnits::Energy,
+        blends: fit
+            .points
+            .iter()
+            .map(|p| p.upper_energy_cm1 > 154_000.0)
+            .collect(),
+        points: fit.points.clone(),
+        fit: Some(fit),
+        no_fit: None,
+        origin: "demo points".into(),
         left_out: 1,
     }
 }
@@ -462,16 +473,180 @@ fn term_diagram_marks_intercombination_single_line_and_candidate_levels() {
 #[test]
 fn boltzmann_figure_states_the_temperature_of_its_slope() {
     // T_exc = −c₂/slope (Boltzmann factor, c₂ = hc/k from CODATA 2018): the number
-    // printed in the figure is the fit's.
+    // printed in the figure is the fit's; the point 3 units off the line is set
+    // aside and drawn as a cross.
     let plot = boltzmann();
-    let fit = plot.fit.unwrap();
-    let t = fit.temperature_k.unwrap();
+    let fit = plot.fit.clone().unwrap();
+    let t = fit.temperature_k;
     assert!((t + SECOND_RADIATION_CONSTANT_CM_K / fit.slope_per_cm1).abs() < 1e-9);
+    assert_eq!(fit.used_points(), 7);
     let svg = boltzmann_svg(&plot).unwrap();
     assert!(
         svg.contains(&format!("T_exc = −c₂/slope = {} ±", t.round())),
         "{t}"
     );
+    assert!(svg.contains("set aside by the fit (1)"));
+}
+
+/// The slope and T_exc printed in a Boltzmann figure: `fit: slope S ± s per cm⁻¹,
+/// T_exc = −c₂/slope = T ± t K`.
+fn printed_fit(svg: &str) -> (f64, f64) {
+    let text = texts(svg)
+        .into_iter()
+        .find(|t| t.starts_with("fit: slope"))
+        .unwrap_or_else(|| panic!("no fit in the figure"));
+    let slope: f64 = text
+        .trim_start_matches("fit: slope ")
+        .split(' ')
+        .next()
+        .unwrap()
+        .parse()
+        .unwrap();
+    let t: f64 = text
+        .split("T_exc = −c₂/slope = ")
+        .nth(1)
+        .unwrap()
+        .split(' ')
+        .next()
+        .unwrap()
+        .parse()
+        .unwrap();
+    (slope, t)
+}
+
+/// A He I line list whose intensities follow the Boltzmann relation at `t` K, from
+/// the compiled He I lines with a published transition probability between 330 nm
+/// and 1.1 µm that have no other He I line within 2 cm⁻¹ (so that each line has
+/// one candidate; the levels are used as published, bracketed ones too): photon counts I = g_k A_ki exp(−c₂E_k/T) × 10¹⁵, scattered by
+/// 5 % (seeded), each with a 5 % uncertainty.
+fn boltzmann_list(t: f64) -> String {
+    use rand::SeedableRng;
+    use rand_distr::{Distribution, Normal};
+    use termsight::levels::{compiled_predictions, embedded_table};
+    let table = embedded_table("He I".parse().unwrap()).unwrap();
+    let predictions = compiled_predictions(&[table]).unwrap();
+    let lines = predictions.lines();
+    let mut rng = rand::rngs::StdRng::seed_from_u64(13);
+    let noise = Normal::new(0.0, 0.05).unwrap();
+    let mut text = String::from(
+        "# Invented demo list: He I with Boltzmann intensities\n\
+         wavenumber_cm1,uncertainty_cm1,intensity,uncertainty_intensity\n",
+    );
+    for (i, line) in lines.iter().enumerate() {
+        let sigma = line.wavenumber_cm1;
+        let Some(probability) = &line.transition_probability else {
+            continue;
+        };
+        let alone = lines
+            .iter()
+            .enumerate()
+            .all(|(k, other)| k == i || (other.wavenumber_cm1 - sigma).abs() > 2.0);
+        if !(9_100.0..=30_300.0).contains(&sigma) || !alone {
+            continue;
+        }
+        let (lower, upper) = predictions.levels_of(line).unwrap();
+        let e_k = lower.energy_cm1.max(upper.energy_cm1);
+        let intensity = 1e15
+            * probability.ga_s1()
+            * (-SECOND_RADIATION_CONSTANT_CM_K * e_k / t).exp()
+            * (1.0 + noise.sample(&mut rng));
+        text.push_str(&format!(
+            "{sigma:.4},0.01,{intensity:.6e},{:.6e}\n",
+            0.05 * intensity
+        ));
+    }
+    text
+}
+
+#[test]
+fn boltzmann_plot_shows_the_temperature_that_assign_reports() {
+    // A list made with the Boltzmann relation ln(I/(g_k A_ki)) = c − c₂E_k/T
+    // (photon counts; Griem 1997, from memory) at T = 6000 K: assign reports T_exc
+    // from its Boltzmann fit, and the figure's slope gives the same T_exc
+    // (T = −c₂/slope, to the 4 digits printed), its printed T the same rounded
+    // number, and T lies within 3 σ of 6000 K.
+    let dir = tempfile::tempdir().unwrap();
+    let list = dir.path().join("he.csv");
+    std::fs::write(&list, boltzmann_list(6000.0)).unwrap();
+    let svg_path = dir.path().join("boltzmann.svg");
+    let json = run(&[
+        "assign",
+        list.to_str().unwrap(),
+        "--species",
+        "He I",
+        "--format",
+        "json",
+        "--boltzmann-plot",
+        svg_path.to_str().unwrap(),
+    ]);
+    let json: serde_json::Value = serde_json::from_str(&json).unwrap();
+    let he = &json["evidence"]["species"][0];
+    assert_eq!(he["temperature_source"], "Fitted", "{he}");
+    let t = he["temperature_k"].as_f64().unwrap();
+    let sigma = he["temperature_sigma_k"].as_f64().unwrap();
+    assert!((t - 6000.0).abs() < 3.0 * sigma, "{t} ± {sigma}");
+    let used = he["boltzmann"]["points"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|p| p["used"] == true)
+        .count();
+    assert!(used >= 8, "{used} points");
+
+    let svg = std::fs::read_to_string(&svg_path).unwrap();
+    let (slope, printed_t) = printed_fit(&svg);
+    let from_slope = -SECOND_RADIATION_CONSTANT_CM_K / slope;
+    assert!(
+        (from_slope - t).abs() < 1e-3 * t,
+        "{from_slope} from the slope against {t}"
+    );
+    assert_eq!(printed_t, t.round(), "{printed_t} against {t}");
+    // The table output prints the same T_exc.
+    let table = run(&["assign", list.to_str().unwrap(), "--species", "He I"]);
+    assert!(
+        table.contains(&format!("T_exc = {t:.0} ± {sigma:.0} K")),
+        "{table}"
+    );
+    check_figure(
+        "boltzmann-assign",
+        &svg,
+        &["Boltzmann plot of He I", "ln(I/(g_k·A_ki))"],
+    );
+}
+
+#[test]
+fn boltzmann_plot_of_the_shipped_example_says_why_there_is_no_temperature() {
+    // The example's intensities are random (its README): assign fits no T_exc for
+    // He I and says why; the figure draws the points, no line, and the same reason.
+    let dir = tempfile::tempdir().unwrap();
+    let svg_path = dir.path().join("b.svg");
+    let json = run(&[
+        "assign",
+        example().to_str().unwrap(),
+        "--species",
+        "He I",
+        "--species",
+        "Ne I",
+        "--format",
+        "json",
+        "--boltzmann-plot",
+        svg_path.to_str().unwrap(),
+        "--boltzmann-species",
+        "He I",
+    ]);
+    let json: serde_json::Value = serde_json::from_str(&json).unwrap();
+    let he = &json["evidence"]["species"][0];
+    assert_eq!(he["temperature_source"], "Default", "{he}");
+    let note = he["temperature_note"].as_str().unwrap();
+    let svg = std::fs::read_to_string(&svg_path).unwrap();
+    assert!(
+        texts(&svg).contains(&format!("no fit: {note}")),
+        "{note}: {:?}",
+        texts(&svg)
+    );
+    // No fitted line: the line colour does not occur.
+    assert_eq!(svg.matches("#B22222").count(), 0);
+    check_figure("example-boltzmann", &svg, &["Boltzmann plot of He I"]);
 }
 
 fn run(args: &[&str]) -> String {
@@ -542,4 +717,188 @@ fn stick_spectrum_of_the_shipped_example_shows_every_line_and_assignment() {
         &svg,
         &["wavelength (nm, in air", "lines.csv"],
     );
+}
+
+/// Run termsight and return its standard output; the run must succeed.
+fn run_in(dir: &Path, args: &[&str]) -> String {
+    let out = Command::new(env!("CARGO_BIN_EXE_termsight"))
+        .current_dir(dir)
+        .args(args)
+        .output()
+        .unwrap();
+    assert!(
+        out.status.success(),
+        "{args:?}: {}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    String::from_utf8(out.stdout).unwrap()
+}
+
+#[test]
+fn plot_outputs_of_optimize_fit_and_lines_are_written_where_asked_and_render() {
+    // Each --plot FILE (and --term-diagram FILE) is written at the path given,
+    // relative to the working directory or absolute, in a directory of its own, and
+    // is a figure that renders with its axes named (common practice, no source).
+    let dir = tempfile::tempdir().unwrap();
+    let work = dir.path();
+    std::fs::create_dir(work.join("figs")).unwrap();
+    let elsewhere = tempfile::tempdir().unwrap();
+    let assigned = work.join("assigned.csv");
+    run_in(
+        work,
+        &[
+            "assign",
+            example().to_str().unwrap(),
+            "--species",
+            "He I",
+            "--species",
+            "Ne I",
+            "--species",
+            "H I",
+            "--format",
+            "csv",
+            "-o",
+            assigned.to_str().unwrap(),
+        ],
+    );
+    let diagram = elsewhere.path().join("terms.svg");
+    run_in(
+        work,
+        &[
+            "optimize",
+            "assigned.csv",
+            "--plot",
+            "figs/ritz.svg",
+            "--term-diagram",
+            diagram.to_str().unwrap(),
+        ],
+    );
+    let models = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("examples/level-models");
+    run_in(
+        work,
+        &[
+            "fit",
+            models.join("he-1snl-fit.toml").to_str().unwrap(),
+            "--species",
+            "He I",
+            "--quiet",
+            "--plot",
+            "figs/fit.svg",
+        ],
+    );
+    run_in(
+        work,
+        &[
+            "lines",
+            models.join("alkaline-earth-4s.toml").to_str().unwrap(),
+            "--plot",
+            "figs/lines.svg",
+        ],
+    );
+    let read = |path: PathBuf| {
+        std::fs::read_to_string(&path).unwrap_or_else(|e| panic!("{}: {e}", path.display()))
+    };
+    check_figure(
+        "optimize-ritz",
+        &read(work.join("figs/ritz.svg")),
+        &["Observed − Ritz", "(σ_obs − σ_Ritz)/u", "assigned.csv"],
+    );
+    check_figure(
+        "optimize-terms",
+        &read(diagram),
+        &["Term diagram of", "energy (cm⁻¹)", "energy (eV)"],
+    );
+    check_figure(
+        "fit-residuals",
+        &read(work.join("figs/fit.svg")),
+        &["E_exp − E_calc of He I", "E_exp − E_calc (cm⁻¹)"],
+    );
+    check_figure(
+        "lines-model",
+        &read(work.join("figs/lines.svg")),
+        &["Lines of the level model of", "log₁₀ gf"],
+    );
+    // Nothing else was written beside them.
+    let mut names: Vec<String> = std::fs::read_dir(work.join("figs"))
+        .unwrap()
+        .map(|e| e.unwrap().file_name().to_string_lossy().into_owned())
+        .collect();
+    names.sort();
+    assert_eq!(names, ["fit.svg", "lines.svg", "ritz.svg"]);
+}
+
+/// The inline SVG figures of an HTML page, in order.
+fn inline_figures(html: &str) -> Vec<&str> {
+    let mut figures = Vec::new();
+    let mut rest = html;
+    while let Some(start) = rest.find("<svg") {
+        let Some(length) = rest[start..].find("</svg>") else {
+            panic!("an <svg> without its end");
+        };
+        let end = start + length + "</svg>".len();
+        figures.push(&rest[start..end]);
+        rest = &rest[end..];
+    }
+    figures
+}
+
+#[test]
+fn report_page_has_every_figure_well_formed_and_ranks_as_assign_does() {
+    // termsight report on the shipped example: every inline figure is well-formed
+    // and renders; the ranking is assign's default (the intensity-aware one, with
+    // its species verdicts), unless --position-only; --candidate-levels adds the
+    // level search's section.
+    let dir = tempfile::tempdir().unwrap();
+    let page = dir.path().join("r.html");
+    let species = ["--species", "He I", "--species", "Ne I", "--species", "H I"];
+    let path = example();
+    let mut args = vec!["report", path.to_str().unwrap()];
+    args.extend(species);
+    args.extend(["--candidate-levels", "-o", page.to_str().unwrap()]);
+    run_in(dir.path(), &args);
+    let html = std::fs::read_to_string(&page).unwrap();
+    let figures = inline_figures(&html);
+    assert_eq!(figures.len(), 4, "stick, terms, ritz, Boltzmann");
+    for (i, svg) in figures.iter().enumerate() {
+        texts(svg);
+        let pixmap = render(svg, &format!("report-{i}"));
+        let ink = ink_fraction(&pixmap, (0.12, 0.95), (0.2, 0.85));
+        assert!(ink > 0.0005, "figure {i} blank");
+    }
+    assert!(html.contains("ranked by log-likelihood"));
+    assert!(html.contains("He I: present"), "the species verdicts");
+    assert!(html.contains("Candidate new levels of"));
+
+    // The same ranking as assign's CSV: the rank-1 species of every line.
+    let csv = run(&[
+        "assign",
+        example().to_str().unwrap(),
+        "--species",
+        "He I",
+        "--species",
+        "Ne I",
+        "--species",
+        "H I",
+        "--format",
+        "csv",
+    ]);
+    let assigned_he = csv
+        .lines()
+        .filter(|l| !l.starts_with('#'))
+        .filter(|l| l.split(',').nth(7) == Some("1") && l.contains(",He I,"))
+        .count();
+    assert!(
+        html.contains(&format!(
+            "<tr><td>He I</td><td class=\"n\">620</td><td class=\"n\">{assigned_he}</td>"
+        )),
+        "He I rank-1 lines: {assigned_he}"
+    );
+
+    let mut args = vec!["report", path.to_str().unwrap()];
+    args.extend(species);
+    args.extend(["--position-only", "-o", page.to_str().unwrap()]);
+    run_in(dir.path(), &args);
+    let html = std::fs::read_to_string(&page).unwrap();
+    assert!(html.contains("ranked by deviation"));
+    assert!(!html.contains("Candidate new levels of"));
 }

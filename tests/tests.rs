@@ -6,6 +6,7 @@ mod angular_tables;
 mod assign_cli;
 mod assign_intensity;
 mod assign_reference;
+mod browser;
 mod compiled_spectra;
 mod digits_roundtrip;
 mod figures;

@@ -21,7 +21,7 @@ use crate::linelist::{GlobalUncertainty, LineList, ReadOptions, read_line_list};
 use crate::notation::Species;
 use crate::plasma::IntensityUnits;
 use crate::report::figures::{
-    SpectrumAxis, StickWindow, boltzmann_from_records, boltzmann_svg, stick_spectrum_from,
+    SpectrumAxis, StickWindow, boltzmann_from_report, boltzmann_svg, stick_spectrum_from,
     stick_spectrum_svg,
 };
 use crate::report::{
@@ -178,13 +178,16 @@ pub struct AssignArgs {
     #[arg(long = "plot-to", value_name = "X")]
     pub plot_to: Option<f64>,
 
-    /// Also draw the Boltzmann plot, ln(Iλ/gA) against the upper level's energy, as
-    /// SVG to FILE, from the rank-1 candidates with an intensity and a published gA
-    /// (blends left out).
+    /// Also draw the Boltzmann plot, ln(I/gA) (photon counts) or ln(Iλ/gA) (energy)
+    /// against the upper level's energy, as SVG to FILE: the points, the line and the
+    /// T_exc ± σ of the species' Boltzmann fit that this assignment reports (with
+    /// --position-only, a fit of the rank-1 candidates with an intensity and a
+    /// published gA).
     #[arg(long = "boltzmann-plot", value_name = "FILE.svg")]
     pub boltzmann_plot: Option<PathBuf>,
 
-    /// The spectrum of the Boltzmann plot. [default: the one with most usable lines]
+    /// The spectrum of the Boltzmann plot. [default: the one whose fit used most
+    /// lines, else the one with most usable lines]
     #[arg(long = "boltzmann-species", value_name = "SPECTRUM")]
     pub boltzmann_species: Option<String>,
 }
@@ -454,7 +457,7 @@ const UNCERTAINTY_INTENSITY: &str = "uncertainty_intensity";
 /// The intensity of each line with its uncertainty from the `uncertainty_intensity`
 /// column (a pass-through column of the list, same unit as the intensity), when
 /// there is one.
-fn line_intensities(list: &LineList) -> Result<Vec<Option<LineIntensity>>, CliError> {
+pub(crate) fn line_intensities(list: &LineList) -> Result<Vec<Option<LineIntensity>>, CliError> {
     let column = list
         .extra_columns
         .iter()
@@ -514,8 +517,7 @@ fn write_figures(args: &AssignArgs, report: &AssignReport<'_>) -> Result<(), Cli
                     .map_err(|e| CliError::Message(format!("--boltzmann-species: {e}")))
             })
             .transpose()?;
-        let records = crate::assign::records(report.list, report.predictions, report.assignments);
-        let plot = boltzmann_from_records(&report.input.source, &records, species)
+        let plot = boltzmann_from_report(report, species)
             .map_err(|e| CliError::Message(format!("--boltzmann-plot: {e}")))?;
         let svg = boltzmann_svg(&plot)
             .map_err(|e| CliError::Message(format!("--boltzmann-plot: {e}")))?;

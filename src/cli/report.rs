@@ -4,31 +4,37 @@
 use std::path::PathBuf;
 
 use super::CliError;
-use super::assign::{AirFormulaArg, MediumArg, PlotAxis, predictions, report_skipped};
+use super::assign::{
+    AirFormulaArg, MediumArg, PlotAxis, UnitsArg, line_intensities, predictions, report_skipped,
+};
 use super::input::{open_file, open_input};
 use super::output::write_atomically;
-use crate::assign::{MatchConfig, assign_lines, records};
+use crate::assign::{EvidenceConfig, MatchConfig, assign_lines, assign_with_evidence, records};
 use crate::fit::{FitOptions, fit_levels, simple_picture};
 use crate::levels::optimize::{
     BlendPolicy, OptimizeOptions, classified_from_records, optimize_classified,
 };
 use crate::levels::read_level_table;
+use crate::levels::search::{LevelSearch, SearchConfig, SearchLine, find_levels};
 use crate::linelist::{GlobalUncertainty, ReadOptions, read_line_list};
+use crate::notation::Species;
+use crate::plasma::IntensityUnits;
 use crate::report::figures::{
-    SpectrumAxis, StickWindow, boltzmann_from_records, boltzmann_svg, fit_residuals_from,
-    fit_residuals_svg, ritz_residuals_from, ritz_residuals_svg, stick_spectrum_from,
-    stick_spectrum_svg, term_diagram_from, term_diagram_svg,
+    ExtraLevel, SpectrumAxis, StickWindow, boltzmann_from_report, boltzmann_svg,
+    fit_residuals_from, fit_residuals_svg, ritz_residuals_from, ritz_residuals_svg,
+    stick_spectrum_from, stick_spectrum_svg, term_diagram_from, term_diagram_svg,
 };
 use crate::report::{
-    AnalysisPage, AssignReport, FitReport, InputSummary, OptimizeContext, PageFigure,
-    analysis_html, optimize_description, optimized_levels_csv,
+    AnalysisPage, AssignReport, EvidenceView, FitReport, InputSummary, OptimizeContext, PageFigure,
+    PageLevelSearch, analysis_html, optimize_description, optimized_levels_csv,
 };
 use crate::structure::model::{LoadedModel, read_model};
 use crate::units::Medium;
 
 /// The long description of `termsight report --help`.
 const LONG_ABOUT: &str = "Run the whole analysis of one line list and write it as one HTML \
-page: assign the lines (as `termsight assign`), optimise the level energies from the rank-1 \
+page: assign the lines (as `termsight assign`: ranked with the intensities as evidence, or by \
+position alone with --position-only), optimise the level energies from the rank-1 \
 candidates (as `termsight optimize`), and, with --fit-model, fit that level model to the \
 optimised levels of its species (as `termsight fit --levels`).
 
@@ -36,13 +42,17 @@ The page holds the input summary, a summary per species, the tables of every sta
 figures (stick spectrum, term diagram, Boltzmann plot, residuals) as inline SVG. It needs \
 nothing else: no scripts, no fonts or styles from elsewhere, no network, so it can be mailed \
 or archived as it is. Blends are kept in the optimisation with their uncertainty doubled \
-(--blends omit leaves them out, as `termsight optimize` does by default).";
+(--blends omit leaves them out, as `termsight optimize` does by default). With \
+--candidate-levels, the lines left unassigned are searched for new levels of the term \
+diagram's spectrum (as `termsight find-levels`), and the candidates are marked in the diagram \
+and listed.";
 
 const AFTER_HELP: &str = "\
 Examples:
   termsight report lines.csv -o report.html
   termsight report lines.csv --species \"He I\" --species \"Ne I\" -o tube.html
-  termsight report lines.csv --species \"He I\" --fit-model he-model.toml -o he.html";
+  termsight report lines.csv --species \"He I\" --fit-model he-model.toml -o he.html
+  termsight report lines.csv --species \"Ne I\" --candidate-levels -o ne.html";
 
 /// What to do with blended lines in the optimisation.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
@@ -101,6 +111,19 @@ pub struct ReportArgs {
     /// Leave out bad rows of the line list (reported on standard error).
     #[arg(long = "skip-bad")]
     pub skip_bad: bool,
+    /// Rank by position and selection rules alone (as `assign --position-only`); by
+    /// default the intensities are evidence too, as `termsight assign` ranks.
+    #[arg(long = "position-only")]
+    pub position_only: bool,
+    /// What the intensity column measures (as for `assign`).
+    #[arg(long = "intensity-units", value_enum, default_value_t = UnitsArg::Photon)]
+    pub intensity_units: UnitsArg,
+    /// Search the lines left unassigned for new levels of the term diagram's
+    /// spectrum (as `termsight find-levels` with its defaults, against that
+    /// spectrum's levels of the predictions), mark the candidates in the diagram and
+    /// list them.
+    #[arg(long = "candidate-levels")]
+    pub candidate_levels: bool,
 }
 
 /// Run `termsight report`.
@@ -138,18 +161,52 @@ pub fn run(args: ReportArgs) -> Result<(), CliError> {
         None,
         Some(&config.reach_of(&list.lines)),
     )?;
-    // Ranked by position and selection rules (as `assign --position-only`).
-    let assignments = assign_lines(&list.lines, &predictions, &config);
+    // Ranked as `assign` ranks: the intensities as evidence, unless --position-only.
+    let evidence_config = EvidenceConfig {
+        units: match args.intensity_units {
+            UnitsArg::Photon => IntensityUnits::Photon,
+            UnitsArg::Energy => IntensityUnits::Energy,
+        },
+        ..EvidenceConfig::default()
+    };
+    let intensities = if args.position_only {
+        Vec::new()
+    } else {
+        line_intensities(&list)?
+    };
+    let (position_only, evidence) = if args.position_only {
+        (assign_lines(&list.lines, &predictions, &config), None)
+    } else {
+        let result = assign_with_evidence(
+            &list.lines,
+            &intensities,
+            &predictions,
+            &config,
+            &evidence_config,
+            &mut |_| {},
+        );
+        (Vec::new(), Some(result))
+    };
+    let assignments = match &evidence {
+        Some(result) => &result.assignments,
+        None => &position_only,
+    };
     let input = InputSummary::from_line_list(&list);
     let assign = AssignReport {
         input: &input,
         config: &config,
         list: &list,
         predictions: &predictions,
-        assignments: &assignments,
-        evidence: None,
+        assignments,
+        evidence: evidence.as_ref().map(|r| EvidenceView {
+            config: &evidence_config,
+            species: &r.species,
+            rounds: r.rounds,
+            converged: r.converged,
+            lines_with_intensity: intensities.iter().flatten().count(),
+        }),
     };
-    let rows = records(&list, &predictions, &assignments);
+    let rows = records(&list, &predictions, assignments);
 
     // Optimise from the rank-1 candidates.
     let classified = classified_from_records(&name, &rows);
@@ -227,9 +284,30 @@ pub fn run(args: ReportArgs) -> Result<(), CliError> {
         "Observed lines (above) against predicted lines (below), joined by their best candidates.",
         stick_spectrum_svg(&stick_spectrum_from(&assign), &window).map_err(|e| e.to_string()),
     );
+    let mut level_search = None;
     if let Ok(report) = &optimization {
         if let Some(species) = report.species.iter().rev().max_by_key(|s| s.levels.len()) {
-            let diagram = term_diagram_from(&name, species, &classified, Vec::new());
+            let extra = if args.candidate_levels {
+                let search = search_levels(&rows, &predictions, species.species);
+                let extra = search
+                    .candidates
+                    .iter()
+                    .map(|c| ExtraLevel {
+                        energy_cm1: c.energy_cm1,
+                        parity: c.parity,
+                        j: c.allowed_j.clone(),
+                        label: format!("{:.2}", c.energy_cm1),
+                    })
+                    .collect();
+                level_search = Some(PageLevelSearch {
+                    species: species.species,
+                    search,
+                });
+                extra
+            } else {
+                Vec::new()
+            };
+            let diagram = term_diagram_from(&name, species, &classified, extra);
             add(
                 &format!(
                     "Term diagram of {} (the spectrum with most optimised levels).",
@@ -249,8 +327,8 @@ pub fn run(args: ReportArgs) -> Result<(), CliError> {
         );
     }
     add(
-        "Boltzmann plot of the spectrum with most lines that have an intensity and a published gA.",
-        boltzmann_from_records(&name, &rows, None)
+        "Boltzmann plot: the species whose excitation temperature was fitted from most lines (the fit the assignment reports), else the one with most lines that have an intensity and a published gA.",
+        boltzmann_from_report(&assign, None)
             .map_err(|e| e.to_string())
             .and_then(|plot| boltzmann_svg(&plot).map_err(|e| e.to_string())),
     );
@@ -289,6 +367,34 @@ pub fn run(args: ReportArgs) -> Result<(), CliError> {
         fit,
         figures,
         missing_figures: missing,
+        level_search: level_search.as_ref(),
     };
     write_atomically(&args.output, analysis_html(&page).as_bytes())
+}
+
+/// The level search of `species` over the lines without a candidate, against that
+/// spectrum's levels in the predictions, with the search's default settings.
+fn search_levels(
+    rows: &[crate::assign::AssignmentRecord],
+    predictions: &crate::levels::Predictions,
+    species: Species,
+) -> LevelSearch {
+    let mut seen = std::collections::HashSet::new();
+    let lines: Vec<SearchLine> = rows
+        .iter()
+        .filter(|r| r.rank.is_none() && seen.insert(r.line))
+        .map(|r| SearchLine {
+            row: r.line,
+            wavenumber_cm1: r.observed_wavenumber_cm1,
+            uncertainty_cm1: r.observed_uncertainty_cm1,
+            intensity: r.observed_intensity,
+        })
+        .collect();
+    let levels: Vec<crate::levels::Level> = predictions
+        .levels()
+        .iter()
+        .filter(|l| l.species == species)
+        .cloned()
+        .collect();
+    find_levels(&lines, &levels, &SearchConfig::default(), &mut |_| {})
 }

@@ -10,7 +10,8 @@
 //! spectroscopy (Griem 1997, *Principles of Plasma Spectroscopy*, §6.1; Thorne,
 //! Litzén & Johansson 1999, *Spectrophysics*, ch. 9; from memory).
 //!
-//! [`fit_boltzmann`] fits it by weighted least squares, weights 1/σ_y², with
+//! [`fit_boltzmann`] fits it by weighted least squares (the project's one
+//! straight-line fit, [`super::straight_line`]), weights 1/σ_y², with
 //! σ_y the relative uncertainty of I combined with that of A (the straight-line fit
 //! of Press et al. 2007, *Numerical Recipes*, 3rd ed., §15.2). Real intensities
 //! scatter more than their stated uncertainties (self-absorption, calibration), so
@@ -22,6 +23,7 @@
 
 use serde::{Deserialize, Serialize};
 
+use super::straight_line::{LineFitError, Scale, WeightedPoint, fit_parallel_lines};
 use crate::units::constants::SECOND_RADIATION_CM_K;
 
 /// One point of a Boltzmann plot.
@@ -119,13 +121,16 @@ pub const MIN_SPAN_CM1: f64 = 2000.0;
 pub const MAX_RELATIVE_SIGMA: f64 = 0.5;
 
 /// Fit the Boltzmann plot of `points` (see the module documentation). Points with a
-/// non-finite value or a σ_y not greater than 0 are set aside.
+/// non-finite value or a σ_y not greater than 0 (or so small that 1/σ_y² overflows)
+/// are set aside.
 pub fn fit_boltzmann(mut points: Vec<BoltzmannPoint>) -> Result<BoltzmannFit, BoltzmannProblem> {
     for p in &mut points {
+        // A weight 1/σ_y² that overflows counts as no σ.
         p.used = p.y.is_finite()
             && p.upper_energy_cm1.is_finite()
             && p.y_sigma > 0.0
-            && p.y_sigma.is_finite();
+            && p.y_sigma.is_finite()
+            && (1.0 / (p.y_sigma * p.y_sigma)).is_finite();
     }
     let mut fit = None;
     for _ in 0..4 {
@@ -191,54 +196,45 @@ struct Line {
     span: f64,
 }
 
-/// Weighted least squares (Press et al. 2007, §15.2, eqs. 15.2.4–15.2.10), with E
-/// centred on its weighted mean for accuracy.
+/// The weighted least-squares line through the used points: the project's one
+/// straight-line fit, [`fit_parallel_lines`] with one group and weights 1/σ_y²
+/// (Press et al. 2007, §15.2), its covariance unscaled here (the Birge scaling is
+/// applied by [`fit_boltzmann`], which also reports the ratio below 1).
 fn straight_line(points: &[BoltzmannPoint]) -> Result<Line, BoltzmannProblem> {
-    let used: Vec<&BoltzmannPoint> = points.iter().filter(|p| p.used).collect();
+    let used: Vec<WeightedPoint> = points
+        .iter()
+        .filter(|p| p.used)
+        .map(|p| WeightedPoint {
+            x: p.upper_energy_cm1,
+            y: p.y,
+            weight: 1.0 / (p.y_sigma * p.y_sigma),
+        })
+        .collect();
     let n = used.len();
     if n < MIN_POINTS {
         return Err(BoltzmannProblem::TooFewPoints { points: n });
     }
     let (low, high) = used.iter().fold((f64::MAX, f64::MIN), |(lo, hi), p| {
-        (lo.min(p.upper_energy_cm1), hi.max(p.upper_energy_cm1))
+        (lo.min(p.x), hi.max(p.x))
     });
     let span = high - low;
     if span < MIN_SPAN_CM1 {
         return Err(BoltzmannProblem::NarrowEnergySpan { span_cm1: span });
     }
-    let w = |p: &BoltzmannPoint| 1.0 / (p.y_sigma * p.y_sigma);
-    let s: f64 = used.iter().map(|p| w(p)).sum();
-    let mean_e = used.iter().map(|p| w(p) * p.upper_energy_cm1).sum::<f64>() / s;
-    let mean_y = used.iter().map(|p| w(p) * p.y).sum::<f64>() / s;
-    let stt: f64 = used
-        .iter()
-        .map(|p| w(p) * (p.upper_energy_cm1 - mean_e).powi(2))
-        .sum();
-    let b = used
-        .iter()
-        .map(|p| w(p) * (p.upper_energy_cm1 - mean_e) * (p.y - mean_y))
-        .sum::<f64>()
-        / stt;
-    // y = mean_y + b (E − mean_e): a = mean_y − b·mean_e.
-    let a = mean_y - b * mean_e;
-    let b_var = 1.0 / stt;
-    let a_var = 1.0 / s + mean_e * mean_e / stt;
-    let ab_cov = -mean_e / stt;
-    let chi2: f64 = used
-        .iter()
-        .map(|p| w(p) * (p.y - a - b * p.upper_energy_cm1).powi(2))
-        .sum();
-    let birge = if n > 2 {
-        (chi2 / (n - 2) as f64).sqrt()
-    } else {
-        1.0
-    };
+    // Stated weights: the covariance comes scaled by max(1, χ²/ν); divided back
+    // out, so that the Birge ratio below 1 is kept for the report.
+    let fit = fit_parallel_lines(&[&used], Scale::Stated).map_err(|e| match e {
+        LineFitError::NoSpread => BoltzmannProblem::NarrowEnergySpan { span_cm1: span },
+        _ => BoltzmannProblem::TooFewPoints { points: n },
+    })?;
+    let unscale = 1.0 / fit.covariance_scale;
+    let birge = fit.reduced_chi_square().sqrt();
     Ok(Line {
-        a,
-        b,
-        a_var,
-        b_var,
-        ab_cov,
+        a: fit.intercepts.first().copied().unwrap_or(f64::NAN),
+        b: fit.slope,
+        a_var: fit.variance(0, 0) * unscale,
+        b_var: fit.variance(1, 1) * unscale,
+        ab_cov: fit.variance(0, 1) * unscale,
         birge,
         span,
     })

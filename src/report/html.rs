@@ -9,6 +9,8 @@ use super::figures::escape;
 use super::{AssignReport, FitReport, significant};
 use crate::assign::AssignmentRecord;
 use crate::levels::optimize::OptimizationReport;
+use crate::levels::search::LevelSearch;
+use crate::notation::Species;
 
 /// Rows of a table shown at most; the rest are counted under the table.
 pub const MAX_TABLE_ROWS: usize = 400;
@@ -36,6 +38,17 @@ pub struct AnalysisPage<'a> {
     pub figures: Vec<PageFigure>,
     /// Figures that could not be drawn, and why.
     pub missing_figures: Vec<String>,
+    /// The search for new levels, when one was asked for.
+    pub level_search: Option<&'a PageLevelSearch>,
+}
+
+/// A search for new levels of one spectrum, for the page.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PageLevelSearch {
+    /// The spectrum whose known levels the candidates combine with.
+    pub species: Species,
+    /// The search.
+    pub search: LevelSearch,
 }
 
 const STYLE: &str = "body{font-family:sans-serif;margin:1.5em auto;max-width:1250px;\
@@ -72,6 +85,16 @@ pub fn analysis_html(page: &AnalysisPage<'_>) -> String {
     h.push_str("</ul>\n");
 
     species_summary(&mut h, page);
+    if let Some(evidence) = &page.assign.evidence {
+        let mut lines = evidence.summary_lines().into_iter();
+        if let Some(heading) = lines.next() {
+            let _ = writeln!(h, "<p>{}</p>\n<ul>", escape(&heading));
+            for line in lines {
+                let _ = writeln!(h, "<li>{}</li>", escape(line.trim()));
+            }
+            h.push_str("</ul>\n");
+        }
+    }
 
     if !page.figures.is_empty() || !page.missing_figures.is_empty() {
         h.push_str("<h2>Figures</h2>\n");
@@ -89,6 +112,9 @@ pub fn analysis_html(page: &AnalysisPage<'_>) -> String {
     }
 
     assignments_table(&mut h, page.records);
+    if let Some(search) = page.level_search {
+        level_search_table(&mut h, search);
+    }
     match &page.optimization {
         Ok((report, description)) => levels_table(&mut h, report, description),
         Err(why) => {
@@ -295,6 +321,63 @@ fn fit_table(h: &mut String, fit: &FitReport<'_>) {
         );
     }
     h.push_str("</table>\n");
+}
+
+/// The candidate new levels.
+fn level_search_table(h: &mut String, page: &PageLevelSearch) {
+    let search = &page.search;
+    let _ = writeln!(
+        h,
+        "<h2>Candidate new levels of {}</h2>\n<p class=\"note\">{} unassigned lines searched \
+         against {} known levels, {:.0}–{:.0} cm⁻¹ ({} candidate energies); a candidate needs \
+         {} lines within {} combined standard uncertainties and a chance probability (look-elsewhere \
+         factor included) of at most {}. Marked in the term diagram.</p>",
+        escape(&page.species.to_string()),
+        search.lines,
+        search.known_levels_used,
+        search.energy_range_cm1.0,
+        search.energy_range_cm1.1,
+        search.candidate_energies,
+        search.config.min_lines(),
+        search.config.tolerance_sigma(),
+        significant(search.config.max_chance_probability(), 2),
+    );
+    if search.candidates.is_empty() {
+        h.push_str("<p class=\"note\">No candidate.</p>\n");
+        return;
+    }
+    h.push_str(
+        "<table>\n<tr><th>energy (cm⁻¹)</th><th>uncertainty (cm⁻¹)</th><th>parity</th>\
+         <th>possible J</th><th>lines</th><th>P chance</th><th>flags</th></tr>\n",
+    );
+    for c in search.candidates.iter().take(MAX_TABLE_ROWS) {
+        let j: Vec<String> = c.allowed_j.iter().map(ToString::to_string).collect();
+        let mut flags = Vec::new();
+        if c.is_intercombination() {
+            flags.push("intercombination");
+        }
+        if c.coincides_with.is_some() {
+            flags.push("coincides");
+        }
+        let _ = writeln!(
+            h,
+            "<tr><td class=\"n\">{:.4}</td><td class=\"n\">{}</td><td>{}</td><td>{}</td>\
+             <td class=\"n\">{}</td><td class=\"n\">{}</td><td>{}</td></tr>",
+            c.energy_cm1,
+            significant(c.uncertainty_cm1, 2),
+            if c.parity == crate::notation::Parity::Odd {
+                "odd"
+            } else {
+                "even"
+            },
+            escape(&j.join(", ")),
+            c.supports.len(),
+            significant(c.chance_probability, 2),
+            flags.join(" ")
+        );
+    }
+    h.push_str("</table>\n");
+    more_rows(h, search.candidates.len());
 }
 
 /// The count of rows left out of a table.

@@ -54,7 +54,7 @@ pub use assign_json::{assign_json, write_assign_json};
 pub use assign_table::{TableOptions, assign_table, write_assign_table};
 pub use compiled::{CompiledSpectrum, compiled_spectra_table};
 pub use fit::{FitReport, fit_json, fit_table, fitted_model_toml};
-pub use html::{AnalysisPage, MAX_TABLE_ROWS, PageFigure, analysis_html};
+pub use html::{AnalysisPage, MAX_TABLE_ROWS, PageFigure, PageLevelSearch, analysis_html};
 pub use level_search::{
     LevelSearchReport, candidate_term, level_search_csv, level_search_json, level_search_table,
 };

@@ -1,38 +1,63 @@
-//! The Boltzmann plot: ln(I·λ/(g_k·A_ki)) against E_k with error bars, the fitted
-//! line, and the excitation temperature of its slope.
+//! The Boltzmann plot: ln(I/(g_k·A_ki)) (photon counts) or ln(I·λ/(g_k·A_ki))
+//! (energy) against E_k with error bars, the library's fitted line, and the
+//! excitation temperature of its slope.
 
 use plotters::prelude::*;
 
 use super::FigureError;
 use super::boltzmann_data::BoltzmannPlot;
-use super::style::{self, HEADER, INK, PREDICTED, SIZE, Sample, text};
+use super::style::{self, HEADER, INK, PREDICTED, SIZE, Sample, WARN, text};
+use crate::plasma::{BoltzmannPoint, IntensityUnits};
 use crate::units::constants::EV_CM1;
 
-/// Draw the Boltzmann plot as SVG.
+/// The ordinate's title for the intensity units.
+fn ordinate(units: IntensityUnits) -> &'static str {
+    match units {
+        IntensityUnits::Photon => "ln(I/(g_k·A_ki)), I photon counts, g_k·A_ki in s⁻¹",
+        IntensityUnits::Energy => "ln(I·λ/(g_k·A_ki)), I energy, λ in cm, g_k·A_ki in s⁻¹",
+    }
+}
+
+/// Draw the Boltzmann plot as SVG: the points with their standard uncertainties as
+/// error bars (filled circles; blends open squares; points the fit set aside
+/// crosses), the fitted line and its T_exc ± σ, or the reason there is no fit.
 pub fn boltzmann_svg(plot: &BoltzmannPlot) -> Result<String, FigureError> {
     if plot.points.is_empty() {
         return Err(FigureError::Empty(format!("no points of {}", plot.species)));
     }
-    let bar = |p: &super::BoltzmannPoint| {
-        p.sigma
-            .or(plot.fit.map(|f| f.scatter))
-            .filter(|s| s.is_finite())
-            .unwrap_or(0.0)
+    let bar = |p: &BoltzmannPoint| {
+        if p.y_sigma.is_finite() && p.y_sigma > 0.0 {
+            p.y_sigma
+        } else {
+            0.0
+        }
     };
-    let (x_lo, x_hi, y_lo, y_hi) = plot.points.iter().fold(
+    let finite: Vec<&BoltzmannPoint> = plot
+        .points
+        .iter()
+        .filter(|p| p.y.is_finite() && p.upper_energy_cm1.is_finite())
+        .collect();
+    if finite.is_empty() {
+        return Err(FigureError::Empty(format!(
+            "no finite points of {}",
+            plot.species
+        )));
+    }
+    let (x_lo, x_hi, y_lo, y_hi) = finite.iter().fold(
         (f64::MAX, f64::MIN, f64::MAX, f64::MIN),
         |(a, b, c, d), p| {
             (
                 a.min(p.upper_energy_cm1),
                 b.max(p.upper_energy_cm1),
-                c.min(p.ordinate - bar(p)),
-                d.max(p.ordinate + bar(p)),
+                c.min(p.y - bar(p)),
+                d.max(p.y + bar(p)),
             )
         },
     );
     let x_pad = ((x_hi - x_lo) * 0.06).max(50.0);
     let y_pad = ((y_hi - y_lo) * 0.08).max(0.1);
     let (x_lo, x_hi, y_lo, y_hi) = (x_lo - x_pad, x_hi + x_pad, y_lo - y_pad, y_hi + y_pad);
+    let blend = |i: usize| plot.blends.get(i).copied().unwrap_or(false);
 
     let mut svg = String::new();
     {
@@ -53,91 +78,107 @@ pub fn boltzmann_svg(plot: &BoltzmannPlot) -> Result<String, FigureError> {
             .bold_line_style(RGBColor(215, 215, 215))
             .axis_style(style::AXIS)
             .x_desc("upper level energy E_k (cm⁻¹)")
-            .y_desc("ln(I·λ/(g_k·A_ki)), λ in nm, g_k·A_ki in s⁻¹")
+            .y_desc(ordinate(plot.units))
             .x_label_formatter(&|v| style::tick(*v, 0))
             .y_label_formatter(&|v| style::tick(*v, 2))
             .label_style(text(13))
             .axis_desc_style(text(15))
             .draw()
             .map_err(FigureError::drawing)?;
-        if let Some(fit) = plot.fit {
-            let line = |x: f64| fit.intercept + fit.slope_per_cm1 * x;
+        if let Some(fit) = &plot.fit {
             chart
                 .draw_series(std::iter::once(PathElement::new(
-                    vec![(x_lo, line(x_lo)), (x_hi, line(x_hi))],
+                    vec![(x_lo, fit.y_at(x_lo)), (x_hi, fit.y_at(x_hi))],
                     PREDICTED.stroke_width(2),
                 )))
                 .map_err(FigureError::drawing)?;
         }
         chart
-            .draw_series(plot.points.iter().filter(|p| bar(p) > 0.0).map(|p| {
+            .draw_series(finite.iter().filter(|p| bar(p) > 0.0).map(|p| {
                 ErrorBar::new_vertical(
                     p.upper_energy_cm1,
-                    p.ordinate - bar(p),
-                    p.ordinate,
-                    p.ordinate + bar(p),
+                    p.y - bar(p),
+                    p.y,
+                    p.y + bar(p),
                     INK.stroke_width(1),
                     8,
                 )
             }))
             .map_err(FigureError::drawing)?;
+        let kind = |i: usize, p: &BoltzmannPoint| (p.used, blend(i));
+        let at = |p: &BoltzmannPoint| (p.upper_energy_cm1, p.y);
+        let marks = || {
+            plot.points
+                .iter()
+                .enumerate()
+                .filter(|(_, p)| p.y.is_finite() && p.upper_energy_cm1.is_finite())
+        };
         chart
             .draw_series(
-                plot.points
-                    .iter()
-                    .filter(|p| !p.blend)
-                    .map(|p| Circle::new((p.upper_energy_cm1, p.ordinate), 4, INK.filled())),
+                marks()
+                    .filter(|(i, p)| kind(*i, p) == (true, false))
+                    .map(|(_, p)| Circle::new(at(p), 4, INK.filled())),
             )
             .map_err(FigureError::drawing)?;
         chart
-            .draw_series(plot.points.iter().filter(|p| p.blend).map(|p| {
-                EmptyElement::at((p.upper_energy_cm1, p.ordinate))
-                    + Rectangle::new([(-4, -4), (4, 4)], INK.stroke_width(1))
+            .draw_series(
+                marks()
+                    .filter(|(i, p)| kind(*i, p) == (true, true))
+                    .map(|(_, p)| {
+                        EmptyElement::at(at(p))
+                            + Rectangle::new([(-4, -4), (4, 4)], INK.stroke_width(1))
+                    }),
+            )
+            .map_err(FigureError::drawing)?;
+        chart
+            .draw_series(marks().filter(|(_, p)| !p.used).map(|(_, p)| {
+                EmptyElement::at(at(p))
+                    + PathElement::new(style::cross((0, 0), 5), WARN.stroke_width(2))
             }))
             .map_err(FigureError::drawing)?;
 
         let title = format!("Boltzmann plot of {}: {}", plot.species, plot.source);
-        let blends = plot.points.iter().filter(|p| p.blend).count();
+        let blends = plot.blends.iter().filter(|b| **b).count();
+        let aside = plot.points.iter().filter(|p| !p.used).count();
         let mut note = format!(
-            "{} rank-1 lines with an intensity and a published gA, {blends} of them blends; {} without left out",
+            "{} points ({blends} blends; {} rank-1 lines without intensity or gA left out) from {}",
             plot.points.len(),
-            plot.left_out
+            plot.left_out,
+            plot.origin
         );
-        let fit_text = match plot.fit {
-            Some(fit) => {
-                let bars = if plot.points.iter().all(|p| p.sigma.is_some()) {
-                    "error bars: the points' standard uncertainties".to_string()
-                } else {
-                    format!(
-                        "error bars: ±{}, the scatter about the line (no intensity uncertainties given)",
-                        style::tick(fit.scatter, 3)
-                    )
-                };
-                note.push_str(&format!("; {bars}"));
-                match (fit.temperature_k, fit.temperature_sigma_k) {
-                    (Some(t), Some(st)) => format!(
-                        "fit: slope {} ± {} per cm⁻¹, T_exc = −c₂/slope = {} ± {} K (kT = {} eV)",
-                        significant(fit.slope_per_cm1, 4),
-                        significant(fit.slope_sigma, 2),
-                        style::tick(t, 0),
-                        style::tick(st, 0),
-                        style::tick(t / SECOND_CM_K_PER_EV, 3)
-                    ),
-                    _ => format!(
-                        "fit: slope {} per cm⁻¹, not negative: no temperature",
-                        significant(fit.slope_per_cm1, 4)
-                    ),
-                }
+        let fit_text = match (&plot.fit, &plot.no_fit) {
+            (Some(fit), _) => {
+                note.push_str(&format!(
+                    "; error bars σ_y; Birge ratio {}",
+                    style::tick(fit.birge_ratio, 2)
+                ));
+                format!(
+                    "fit: slope {} ± {} per cm⁻¹, T_exc = −c₂/slope = {} ± {} K (kT = {} eV)",
+                    significant(fit.slope_per_cm1, 4),
+                    significant(fit.slope_sigma_per_cm1, 2),
+                    style::tick(fit.temperature_k, 0),
+                    style::tick(fit.temperature_sigma_k, 0),
+                    style::tick(fit.temperature_k / SECOND_CM_K_PER_EV, 3)
+                )
             }
-            None => "no fit: fewer than three points or a single upper energy".to_string(),
+            (None, Some(why)) => format!("no fit: {why}"),
+            (None, None) => "no fit".to_string(),
         };
         let legend = [
             (Sample::Dot(INK), "line".to_string()),
+            (Sample::Square(INK), "blend".to_string()),
             (
-                Sample::Square(INK),
-                "blend (more than one candidate)".to_string(),
+                Sample::Cross(WARN),
+                format!("set aside by the fit ({aside})"),
             ),
-            (Sample::Line(PREDICTED, 2), fit_text),
+            (
+                if plot.fit.is_some() {
+                    Sample::Line(PREDICTED, 2)
+                } else {
+                    Sample::Nothing
+                },
+                fit_text,
+            ),
         ];
         style::header(&top, &title, &note, &legend)?;
         root.present().map_err(FigureError::drawing)?;

@@ -1,56 +1,32 @@
-//! The data of the Boltzmann plot: per line, ln(I·λ/(g_k·A_ki)) against the upper
-//! level's energy E_k, and the straight line fitted to them, whose slope −1/(k T)
-//! gives the excitation temperature.
+//! The data of the Boltzmann plot: the library's Boltzmann fit
+//! ([`crate::plasma::boltzmann`]) of one species, its points and its line, so that
+//! the figure shows the T_exc the assignment reports.
 //!
-//! For a source in local thermodynamic equilibrium the intensity (energy per time) of
-//! a line of wavelength λ from upper level k is I ∝ (g_k A_ki / λ) exp(−E_k/(k T))
+//! For a source in local thermodynamic equilibrium a line from upper level k gives
+//! I ∝ g_k A_ki exp(−E_k/(k T)) photons per time, or that times 1/λ in energy
 //! (the Boltzmann distribution of the upper levels; textbook, e.g. Griem, *Principles
-//! of Plasma Spectroscopy*, 1997, from memory), so ln(I λ/(g_k A_ki)) = c − E_k/(k T):
-//! with E_k in cm⁻¹ the slope is −c₂/T, c₂ = hc/k the second radiation constant.
+//! of Plasma Spectroscopy*, 1997, from memory). So ln(I/(g_k A_ki)) (photon counts)
+//! or ln(I λ/(g_k A_ki)) (energy) = c − E_k/(k T): with E_k in cm⁻¹ the slope is
+//! −c₂/T, c₂ = hc/k the second radiation constant.
 //!
-//! The fit is [`fit_boltzmann`], the one function to replace when the library gives
-//! its own fit of the same points.
+//! Two sources of points and fit:
+//! - [`boltzmann_from_report`] for an intensity-aware assignment: the fit the
+//!   assignment made of the species (the points it used, the ones it set aside, its
+//!   slope and T_exc ± σ). Where it fitted none, the rank-1 lines are drawn without a
+//!   line, with the assignment's reason.
+//! - [`boltzmann_from_records`] for the rows of any assignment (position-only, or the
+//!   assign CSV): the rank-1 candidates with an intensity and a published gA, fitted
+//!   with [`fit_boltzmann`], the same fit.
 
-use crate::assign::{AssignmentRecord, Flag};
+use crate::assign::evidence::DEFAULT_RELATIVE_UNCERTAINTY;
+use crate::assign::{AssignmentRecord, Flag, SpeciesEvidence};
 use crate::notation::Species;
+use crate::plasma::{BoltzmannFit, BoltzmannPoint, IntensityUnits, fit_boltzmann};
+use crate::report::AssignReport;
 
 /// The second radiation constant c₂ = hc/k, cm·K: the project's one value
 /// ([`crate::units::constants::SECOND_RADIATION_CM_K`], CODATA 2018).
 pub const SECOND_RADIATION_CONSTANT_CM_K: f64 = crate::units::constants::SECOND_RADIATION_CM_K;
-
-/// One line of the Boltzmann plot.
-#[derive(Debug, Clone, PartialEq)]
-pub struct BoltzmannPoint {
-    /// Energy of the upper level E_k, cm⁻¹.
-    pub upper_energy_cm1: f64,
-    /// ln(I·λ/(g_k·A_ki)), I as given, λ in nm, g_k·A_ki in s⁻¹.
-    pub ordinate: f64,
-    /// Standard uncertainty of the ordinate, when known (σ of ln I = σ_I/I).
-    pub sigma: Option<f64>,
-    /// The observed line has more than one candidate (its intensity may be shared).
-    pub blend: bool,
-}
-
-/// The straight line fitted to the points, and the temperature of its slope.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct BoltzmannFit {
-    /// Slope, per cm⁻¹.
-    pub slope_per_cm1: f64,
-    /// Its standard uncertainty.
-    pub slope_sigma: f64,
-    /// Intercept (the ordinate at E_k = 0).
-    pub intercept: f64,
-    /// Its standard uncertainty.
-    pub intercept_sigma: f64,
-    /// Root-mean-square scatter of the points about the line (weighted), ordinate units.
-    pub scatter: f64,
-    /// Points fitted.
-    pub points: usize,
-    /// T_exc = −c₂/slope, K; `None` when the slope is not negative.
-    pub temperature_k: Option<f64>,
-    /// Its standard uncertainty c₂·σ_slope/slope², K.
-    pub temperature_sigma_k: Option<f64>,
-}
 
 /// What the Boltzmann figure shows.
 #[derive(Debug, Clone, PartialEq)]
@@ -59,10 +35,18 @@ pub struct BoltzmannPlot {
     pub source: String,
     /// The spectrum.
     pub species: String,
-    /// The points.
+    /// What the intensities measure (sets the ordinate: ln(I/gA) or ln(Iλ/gA)).
+    pub units: IntensityUnits,
+    /// The points (the library's type: `used` false for those the fit set aside).
     pub points: Vec<BoltzmannPoint>,
-    /// The fit, `None` with fewer than three points or a single upper energy.
+    /// Per point: whether its line is a blend.
+    pub blends: Vec<bool>,
+    /// The fit, when there is one.
     pub fit: Option<BoltzmannFit>,
+    /// Why there is no fit, when there is none.
+    pub no_fit: Option<String>,
+    /// Where the points and the fit come from, for the figure's note.
+    pub origin: String,
     /// Rank-1 lines of the species left out: no intensity or no published gA.
     pub left_out: usize,
 }
@@ -79,33 +63,108 @@ pub enum BoltzmannError {
     NoPoints(Option<String>),
 }
 
+/// The Boltzmann plot of an assignment. With the intensity-aware assignment
+/// (`report.evidence`), the plot of `species` (`None`: the species whose fit used
+/// most points, else the one with most usable rank-1 lines) is the assignment's own
+/// fit; with the position-only ranking, [`boltzmann_from_records`] of its rows
+/// (photon counts).
+pub fn boltzmann_from_report(
+    report: &AssignReport<'_>,
+    species: Option<Species>,
+) -> Result<BoltzmannPlot, BoltzmannError> {
+    let records = crate::assign::records(report.list, report.predictions, report.assignments);
+    let source = &report.input.source;
+    let Some(evidence) = &report.evidence else {
+        return boltzmann_from_records(source, &records, species, IntensityUnits::Photon);
+    };
+    let units = evidence.config.units;
+    let fitted = |s: &&SpeciesEvidence| s.boltzmann.is_some();
+    let chosen: Option<&SpeciesEvidence> = match species {
+        Some(wanted) => evidence.species.iter().find(|s| s.species == wanted),
+        None => evidence
+            .species
+            .iter()
+            .filter(fitted)
+            .rev()
+            .max_by_key(|s| s.boltzmann.as_ref().map_or(0, |f| f.used_points())),
+    };
+    let Some(fit) = chosen.and_then(|s| s.boltzmann.clone()) else {
+        // No fit: the rank-1 lines, drawn without a line, and the assignment's reason.
+        let mut plot = boltzmann_from_records(source, &records, species, units)?;
+        let reason = evidence
+            .species
+            .iter()
+            .find(|s| s.species.to_string() == plot.species)
+            .and_then(|s| s.temperature_note.clone())
+            .unwrap_or_else(|| "no Boltzmann plot".to_string());
+        plot.fit = None;
+        plot.no_fit = Some(reason);
+        plot.origin = format!(
+            "the rank-1 lines ({} units, σ_y {} %); the assignment fitted no temperature",
+            units.name(),
+            DEFAULT_RELATIVE_UNCERTAINTY * 100.0
+        );
+        return Ok(plot);
+    };
+    let species = chosen
+        .map(|s| s.species)
+        .ok_or(BoltzmannError::NoPoints(None))?;
+    let blend_of = |observed: usize| {
+        report
+            .assignments
+            .iter()
+            .find(|a| a.observed == observed)
+            .is_some_and(|a| a.declared_blend.unwrap_or(a.candidates.len() > 1))
+    };
+    let rank_one = records
+        .iter()
+        .filter(|r| r.rank == Some(1) && r.candidate.as_ref().is_some_and(|c| c.species == species))
+        .count();
+    Ok(BoltzmannPlot {
+        source: source.clone(),
+        species: species.to_string(),
+        units,
+        blends: fit.points.iter().map(|p| blend_of(p.observed)).collect(),
+        points: fit.points.clone(),
+        left_out: rank_one.saturating_sub(fit.points.len()),
+        origin: "the assignment's Boltzmann fit (its points, its T_exc)".to_string(),
+        no_fit: None,
+        fit: Some(fit),
+    })
+}
+
 /// The points of one species from the rows of an assignment (the assign CSV, or
 /// [`crate::assign::records`]): every rank-1 candidate with a positive intensity and
-/// a published g_k·A_ki (blends too, marked: with many spectra nearly every line has
-/// more than one candidate), and the straight line fitted to them.
-/// `species`: the spectrum to plot; `None`: the one with most such lines (the first
-/// in the rows on a tie).
+/// a published g_k·A_ki (blends too, marked), y = ln(I/(g_k A_ki)) for photon counts
+/// or ln(I λ/(g_k A_ki)) (λ in cm) for energy, σ_y = the relative uncertainty
+/// [`DEFAULT_RELATIVE_UNCERTAINTY`] (the rows carry none), fitted with
+/// [`fit_boltzmann`]. `species`: the spectrum to plot; `None`: the one with most
+/// such lines (the first in the rows on a tie). A point's `observed` is its line's
+/// number in the rows.
 pub fn boltzmann_from_records(
     source: &str,
     records: &[AssignmentRecord],
     species: Option<Species>,
+    units: IntensityUnits,
 ) -> Result<BoltzmannPlot, BoltzmannError> {
-    let usable = |r: &AssignmentRecord| -> Option<(Species, BoltzmannPoint)> {
+    let usable = |r: &AssignmentRecord| -> Option<(Species, BoltzmannPoint, bool)> {
         let c = r.candidate.as_ref()?;
         let intensity = r.observed_intensity.filter(|i| *i > 0.0)?;
         let ga = c.ga_s1.filter(|g| *g > 0.0)?;
-        if r.observed_wavenumber_cm1 <= 0.0 {
+        let sigma = c.predicted_wavenumber_cm1;
+        if sigma.is_nan() || sigma <= 0.0 {
             return None;
         }
-        let lambda_nm = 1e7 / r.observed_wavenumber_cm1;
         Some((
             c.species,
             BoltzmannPoint {
                 upper_energy_cm1: c.upper_energy_cm1.max(c.lower_energy_cm1),
-                ordinate: (intensity * lambda_nm / ga).ln(),
-                sigma: None,
-                blend: r.flags.contains(&Flag::Blend),
+                y: intensity.ln() - ga.ln() - units.ln_factor(sigma),
+                y_sigma: DEFAULT_RELATIVE_UNCERTAINTY,
+                observed: r.line,
+                used: true,
             },
+            r.flags.contains(&Flag::Blend),
         ))
     };
     let best: Vec<&AssignmentRecord> = records.iter().filter(|r| r.rank == Some(1)).collect();
@@ -113,7 +172,7 @@ pub fn boltzmann_from_records(
         Some(s) => s,
         None => {
             let mut counts: Vec<(Species, usize)> = Vec::new();
-            for (s, _) in best.iter().filter_map(|r| usable(r)) {
+            for (s, _, _) in best.iter().filter_map(|r| usable(r)) {
                 match counts.iter_mut().find(|(t, _)| *t == s) {
                     Some((_, n)) => *n += 1,
                     None => counts.push((s, 1)),
@@ -131,160 +190,104 @@ pub fn boltzmann_from_records(
         .iter()
         .filter(|r| r.candidate.as_ref().is_some_and(|c| c.species == chosen))
         .collect();
-    let points: Vec<BoltzmannPoint> = of_species
+    let (points, blends): (Vec<BoltzmannPoint>, Vec<bool>) = of_species
         .iter()
         .filter_map(|r| usable(r))
-        .map(|(_, p)| p)
-        .collect();
+        .map(|(_, p, b)| (p, b))
+        .unzip();
     if points.is_empty() {
         return Err(BoltzmannError::NoPoints(Some(chosen.to_string())));
     }
+    let left_out = of_species.len() - points.len();
+    let (fit, no_fit, points) = match fit_boltzmann(points.clone()) {
+        Ok(fit) => {
+            let points = fit.points.clone();
+            (Some(fit), None, points)
+        }
+        Err(problem) => (None, Some(problem.to_string()), points),
+    };
     Ok(BoltzmannPlot {
         source: source.to_string(),
         species: chosen.to_string(),
-        left_out: of_species.len() - points.len(),
-        fit: fit_boltzmann(&points),
+        units,
         points,
-    })
-}
-
-/// The weighted least-squares straight line through the points (weights 1/σ² when
-/// every point has a σ, else equal weights with the uncertainties scaled by the
-/// scatter about the line, s² = Σr²/(n − 2)); Bevington & Robinson, *Data
-/// Reduction and Error Analysis*, 3rd ed. (2003), eqs. 6.12 and 6.21–6.22 (from
-/// memory). `None` with fewer than three points or a single upper energy.
-pub fn fit_boltzmann(points: &[BoltzmannPoint]) -> Option<BoltzmannFit> {
-    let n = points.len();
-    if n < 3 {
-        return None;
-    }
-    let weighted = points.iter().all(|p| p.sigma.is_some_and(|s| s > 0.0));
-    let weight = |p: &BoltzmannPoint| match p.sigma {
-        Some(s) if weighted => 1.0 / (s * s),
-        _ => 1.0,
-    };
-    // Centre the energies so that the sums do not lose digits (E_k ~ 10⁵ cm⁻¹).
-    let x0 = points.iter().map(|p| p.upper_energy_cm1).sum::<f64>() / n as f64;
-    let (mut s, mut sx, mut sy, mut sxx, mut sxy) = (0.0, 0.0, 0.0, 0.0, 0.0);
-    for p in points {
-        let (w, x, y) = (weight(p), p.upper_energy_cm1 - x0, p.ordinate);
-        s += w;
-        sx += w * x;
-        sy += w * y;
-        sxx += w * x * x;
-        sxy += w * x * y;
-    }
-    let delta = s * sxx - sx * sx;
-    if delta.is_nan() || delta <= 0.0 || sxx.is_nan() || sxx <= 0.0 {
-        return None;
-    }
-    let slope = (s * sxy - sx * sy) / delta;
-    let intercept_c = (sxx * sy - sx * sxy) / delta;
-    let chi2: f64 = points
-        .iter()
-        .map(|p| {
-            let r = p.ordinate - (intercept_c + slope * (p.upper_energy_cm1 - x0));
-            weight(p) * r * r
-        })
-        .sum();
-    let dof = (n - 2) as f64;
-    let scale = if weighted { 1.0 } else { chi2 / dof };
-    let slope_var = scale * s / delta;
-    let intercept_c_var = scale * sxx / delta;
-    let covariance = -scale * sx / delta;
-    // Back to the intercept at E_k = 0: a = a_c − b·x0.
-    let intercept = intercept_c - slope * x0;
-    let intercept_var = intercept_c_var + x0 * x0 * slope_var - 2.0 * x0 * covariance;
-    let slope_sigma = slope_var.max(0.0).sqrt();
-    let (temperature_k, temperature_sigma_k) = if slope < 0.0 {
-        (
-            Some(-SECOND_RADIATION_CONSTANT_CM_K / slope),
-            Some(SECOND_RADIATION_CONSTANT_CM_K * slope_sigma / (slope * slope)),
-        )
-    } else {
-        (None, None)
-    };
-    Some(BoltzmannFit {
-        slope_per_cm1: slope,
-        slope_sigma,
-        intercept,
-        intercept_sigma: intercept_var.max(0.0).sqrt(),
-        scatter: (chi2 / s * n as f64 / dof).sqrt(),
-        points: n,
-        temperature_k,
-        temperature_sigma_k,
+        blends,
+        fit,
+        no_fit,
+        origin: format!(
+            "the rank-1 lines ({} units, σ_y {} %), fitted here",
+            units.name(),
+            DEFAULT_RELATIVE_UNCERTAINTY * 100.0
+        ),
+        left_out,
     })
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::assign::CandidateRecord;
+    use crate::linelist::GivenPosition;
 
-    fn point(e: f64, y: f64) -> BoltzmannPoint {
-        BoltzmannPoint {
-            upper_energy_cm1: e,
-            ordinate: y,
-            sigma: None,
-            blend: false,
+    fn record(line: usize, upper: f64, sigma: f64, intensity: f64, ga: f64) -> AssignmentRecord {
+        let label: crate::levels::LevelLabel = "1s.2s 3S 1".parse().unwrap();
+        AssignmentRecord {
+            line,
+            given: GivenPosition::Wavenumber { value: sigma },
+            observed_wavenumber_cm1: sigma,
+            observed_uncertainty_cm1: 0.01,
+            observed_intensity: Some(intensity),
+            rank: Some(1),
+            candidate: Some(CandidateRecord {
+                species: "He I".parse().unwrap(),
+                lower: label.clone(),
+                lower_energy_cm1: upper - sigma,
+                upper: label,
+                upper_energy_cm1: upper,
+                predicted_wavenumber_cm1: sigma,
+                predicted_uncertainty_cm1: 0.01,
+                predicted_in_given_unit: None,
+                predicted_strength: None,
+                ga_s1: Some(ga),
+                deviation_cm1: 0.0,
+                combined_uncertainty_cm1: 0.01,
+                deviation_sigma: 0.0,
+                chance_probability: 0.0,
+                selection_rules: crate::levels::e1::SelectionRules::Ls,
+            }),
+            flags: Vec::new(),
+            extra: Vec::new(),
         }
     }
 
     #[test]
-    fn points_on_a_line_give_back_its_temperature() {
-        // ln(Iλ/gA) = 3 − E_k c₂/T with T = 6000 K (the Boltzmann factor; c₂ from
-        // CODATA 2018): the fit recovers T exactly and σ_T = 0.
+    fn rows_on_a_boltzmann_line_give_back_its_temperature() {
+        // I = gA exp(−c₂E/T) (photon counts) and I = gA σ exp(−c₂E/T) (energy), at
+        // T = 6000 K (the Boltzmann relation; c₂ from CODATA 2018): the library's fit
+        // of the rows recovers T.
         let t = 6000.0;
-        let points: Vec<_> = [150_000.0, 151_500.0, 153_000.0, 160_000.0]
-            .iter()
-            .map(|&e| point(e, 3.0 - e * SECOND_RADIATION_CONSTANT_CM_K / t))
-            .collect();
-        let fit = fit_boltzmann(&points).unwrap();
-        assert!((fit.temperature_k.unwrap() - t).abs() < 1e-6 * t, "{fit:?}");
-        assert!(fit.temperature_sigma_k.unwrap() < 1e-6, "{fit:?}");
-        assert!((fit.intercept - 3.0).abs() < 1e-6, "{fit:?}");
-    }
-
-    #[test]
-    fn equal_weights_match_scipy_linregress() {
-        // scipy.stats.linregress([1,2,3,4,5], [-1.1,-2.3,-2.9,-4.2,-4.8]) (scipy 1.x):
-        // slope −0.93, intercept −0.27, stderr 0.06403124237432756,
-        // intercept_stderr 0.21236760581594993 (computed for this test).
-        let points: Vec<_> = [
-            (1.0, -1.1),
-            (2.0, -2.3),
-            (3.0, -2.9),
-            (4.0, -4.2),
-            (5.0, -4.8),
-        ]
-        .iter()
-        .map(|&(x, y)| point(x, y))
-        .collect();
-        let fit = fit_boltzmann(&points).unwrap();
-        assert!((fit.slope_per_cm1 + 0.93).abs() < 1e-12, "{fit:?}");
-        assert!((fit.intercept + 0.27).abs() < 1e-12, "{fit:?}");
-        assert!(
-            (fit.slope_sigma - 0.06403124237432756).abs() < 1e-12,
-            "{fit:?}"
-        );
-        assert!(
-            (fit.intercept_sigma - 0.21236760581594993).abs() < 1e-12,
-            "{fit:?}"
-        );
-        // T = −c₂/slope and σ_T = c₂σ_b/b² (propagation of the slope's σ).
-        let t = fit.temperature_k.unwrap();
-        assert!((t - SECOND_RADIATION_CONSTANT_CM_K / 0.93).abs() < 1e-12);
-        assert!((fit.temperature_sigma_k.unwrap() - t * 0.06403124237432756 / 0.93).abs() < 1e-12);
-    }
-
-    #[test]
-    fn too_few_points_or_one_energy_give_no_fit() {
-        // Common practice, no source: two points leave no degree of freedom for σ.
-        assert!(fit_boltzmann(&[point(1.0, 1.0), point(2.0, 0.0)]).is_none());
-        assert!(fit_boltzmann(&[point(1.0, 1.0), point(1.0, 0.0), point(1.0, 2.0)]).is_none());
-        // A rising line has no temperature.
-        let up: Vec<_> = (0..4)
-            .map(|i| point(i as f64, i as f64 * 0.5 + (i % 2) as f64 * 0.1))
-            .collect();
-        assert_eq!(fit_boltzmann(&up).unwrap().temperature_k, None);
+        for units in [IntensityUnits::Photon, IntensityUnits::Energy] {
+            let rows: Vec<AssignmentRecord> = (0..5)
+                .map(|i| {
+                    let e = 185_000.0 + 2500.0 * f64::from(i);
+                    let sigma = 15_000.0 + 1000.0 * f64::from(i);
+                    let ga = 1e7 * f64::from(i + 1);
+                    let i_photon = ga * (-SECOND_RADIATION_CONSTANT_CM_K * e / t).exp();
+                    let intensity = match units {
+                        IntensityUnits::Photon => i_photon,
+                        IntensityUnits::Energy => i_photon * sigma,
+                    };
+                    record(i as usize + 1, e, sigma, intensity * 1e90, ga)
+                })
+                .collect();
+            let plot = boltzmann_from_records("demo", &rows, None, units).unwrap();
+            let fit = plot.fit.unwrap();
+            assert!(
+                (fit.temperature_k - t).abs() < 1e-6 * t,
+                "{units:?} {fit:?}"
+            );
+            assert_eq!(plot.species, "He I");
+            assert_eq!(plot.points.len(), 5);
+        }
     }
 }

@@ -7,7 +7,7 @@
 //! |---|---|---|
 //! | [`stick_spectrum_svg`] | [`StickSpectrum`] | `assign` |
 //! | [`term_diagram_svg`] | [`TermDiagram`] | `optimize` |
-//! | [`boltzmann_svg`] | [`BoltzmannPlot`] | `assign` (rank-1 rows with intensity and gA) |
+//! | [`boltzmann_svg`] | [`BoltzmannPlot`] | `assign` (its Boltzmann fit, [`crate::plasma::boltzmann`]) |
 //! | [`ritz_residuals_svg`] | [`RitzResiduals`] | `optimize` |
 //! | [`fit_residuals_svg`] | [`FitResiduals`] | `fit` |
 //! | [`model_spectrum_svg`] | [`ModelSpectrumFigure`] | `lines` |
@@ -31,8 +31,8 @@ mod term_diagram;
 
 pub use boltzmann::boltzmann_svg;
 pub use boltzmann_data::{
-    BoltzmannError, BoltzmannFit, BoltzmannPlot, BoltzmannPoint, SECOND_RADIATION_CONSTANT_CM_K,
-    boltzmann_from_records, fit_boltzmann,
+    BoltzmannError, BoltzmannPlot, SECOND_RADIATION_CONSTANT_CM_K, boltzmann_from_records,
+    boltzmann_from_report,
 };
 pub use fit_residuals::{FitResidual, FitResiduals, fit_residuals_from, fit_residuals_svg};
 pub use model_spectrum::{

@@ -39,6 +39,8 @@ pub enum Sample {
     Dot(RGBColor),
     /// An open square of this colour.
     Square(RGBColor),
+    /// No mark: the text alone (what a figure does not draw, and why).
+    Nothing,
 }
 
 /// Draw the title (bold), one note line under it and the legend row across the
@@ -84,6 +86,7 @@ pub fn header(
                 [(x - 4, y - 4), (x + 4, y + 4)],
                 colour.stroke_width(1),
             )),
+            Sample::Nothing => Ok(()),
         }
         .map_err(FigureError::drawing)?;
         area.draw(&Text::new(
