@@ -147,20 +147,16 @@ impl RuleKey {
         }
     }
 
+    /// What [`RuleKey::combines_with`] and [`RuleKey::rules`] look at: parity, 2J,
+    /// and whether the term is LS. Levels of one class combine alike.
+    pub(crate) fn e1_class(&self) -> (crate::notation::Parity, u32, bool) {
+        (self.parity, self.twice_j, self.ls.is_some())
+    }
+
     /// [`is_e1_candidate`] on two keys.
     pub(crate) fn combines_with(&self, other: &RuleKey) -> bool {
         let (ja, jb) = (self.twice_j, other.twice_j);
         self.parity != other.parity && ja.abs_diff(jb) <= 2 && !(ja == 0 && jb == 0)
-    }
-
-    /// The rules [`RuleKey::classify`] applies, without the flags: LS when both
-    /// terms are LS.
-    pub(crate) fn rules(&self, other: &RuleKey) -> SelectionRules {
-        if self.ls.is_some() && other.ls.is_some() {
-            SelectionRules::Ls
-        } else {
-            SelectionRules::ParityAndJ
-        }
     }
 
     /// [`classify`] on two keys.

@@ -39,6 +39,7 @@ mod embedded;
 mod formable;
 mod label;
 pub mod optimize;
+mod pairs;
 mod predicted;
 mod reach;
 mod ritz;
