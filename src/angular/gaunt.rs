@@ -82,6 +82,24 @@ impl CkTable {
         table
     }
 
+    /// The table for `max_l`, made once per process and shared: a level model
+    /// is built many times over in a fit session, and the table costs thousands
+    /// of 3j symbols.
+    pub fn shared(max_l: u32) -> std::sync::Arc<CkTable> {
+        use std::collections::BTreeMap;
+        use std::sync::{Arc, Mutex, OnceLock};
+        static TABLES: OnceLock<Mutex<BTreeMap<u32, Arc<CkTable>>>> = OnceLock::new();
+        let tables = TABLES.get_or_init(|| Mutex::new(BTreeMap::new()));
+        if let Some(found) = tables.lock().ok().and_then(|t| t.get(&max_l).cloned()) {
+            return found;
+        }
+        let table = Arc::new(CkTable::new(max_l));
+        if let Ok(mut t) = tables.lock() {
+            t.entry(max_l).or_insert_with(|| table.clone());
+        }
+        table
+    }
+
     /// The largest l in the table.
     pub fn max_l(&self) -> u32 {
         self.max_l

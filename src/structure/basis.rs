@@ -4,6 +4,8 @@
 //! the block's Slater determinants at any (M_L, M_S).
 
 use std::collections::HashMap;
+
+use rustc_hash::FxHashMap;
 use std::fmt;
 use std::sync::Arc;
 
@@ -95,8 +97,8 @@ pub(crate) struct Coupler {
 /// Memo of coupled states and Clebsch–Gordan coefficients.
 #[derive(Debug, Default)]
 pub(crate) struct StateCache {
-    states: HashMap<(Vec<u32>, i32, i32), Arc<DeterminantVector>>,
-    cg: HashMap<[i32; 6], f64>,
+    states: FxHashMap<(Vec<u32>, i32, i32), Arc<DeterminantVector>>,
+    cg: FxHashMap<[i32; 6], f64>,
 }
 
 impl StateCache {
@@ -350,7 +352,7 @@ impl Coupler {
         } else {
             let (l1, s1) = term.couplings[depth - 1];
             let (l2, s2) = (shell_term.l_total, shell_term.two_s);
-            let mut sum: HashMap<Determinant, f64> = HashMap::new();
+            let mut sum: FxHashMap<Determinant, f64> = FxHashMap::default();
             for m1 in -(l1 as i32)..=l1 as i32 {
                 let m2 = m_l - m1;
                 if m2.unsigned_abs() > l2 {

@@ -17,10 +17,11 @@
 //!   subshells enter, as R^k; the one-electron part and the passive core are left
 //!   out (Brillouin's theorem for Hartree–Fock orbitals; common practice).
 
-use std::collections::{BTreeMap, BTreeSet, HashMap, HashSet};
+use std::collections::{BTreeMap, BTreeSet, HashSet};
 use std::sync::Arc;
 
 use nalgebra::DMatrix;
+use rustc_hash::FxHashMap;
 
 use super::StructureError;
 use super::basis::{BasisTerm, Coupler, DeterminantVector, StateCache, weighted_dot};
@@ -63,11 +64,10 @@ impl CoefficientMatrix {
         }
     }
 
-    /// From elements (row, column, value) in any order; of an element given twice
-    /// the last is kept, and zeros are left out.
+    /// From elements (row, column, value) in any order, each given once (of an
+    /// element given twice one is kept), zeros left out.
     pub(crate) fn from_elements(size: usize, mut list: Vec<(u32, u32, f64)>) -> CoefficientMatrix {
-        // A stable sort keeps repeated elements in the order given.
-        list.sort_by_key(|&(r, c, _)| (r, c));
+        list.sort_unstable_by_key(|&(r, c, _)| (u64::from(r) << 32) | u64::from(c));
         let mut entries: Vec<(u32, u32, f64)> = Vec::with_capacity(list.len());
         for e in list {
             match entries.last_mut() {
@@ -382,9 +382,9 @@ fn project_on_determinants(
     (l, two_s): (u32, u32),
     terms: &[usize],
     keep: &dyn Fn(usize, usize) -> bool,
-) -> HashMap<ParameterId, DMatrix<f64>> {
+) -> FxHashMap<ParameterId, DMatrix<f64>> {
     let mut entries = Vec::new();
-    let mut index: HashMap<Determinant, usize> = HashMap::new();
+    let mut index: FxHashMap<Determinant, usize> = FxHashMap::default();
     let mut dets: Vec<(Determinant, usize)> = Vec::new();
     let vectors: Vec<_> = terms
         .iter()
@@ -407,7 +407,7 @@ fn project_on_determinants(
             in_terms[index[d]].push((col, *c));
         }
     }
-    let mut images: HashMap<ParameterId, DMatrix<f64>> = HashMap::new();
+    let mut images: FxHashMap<ParameterId, DMatrix<f64>> = FxHashMap::default();
     for i in 0..dets.len() {
         for j in i..dets.len() {
             let (di, ci) = dets[i];
@@ -489,7 +489,7 @@ pub(crate) fn build_block(
     }
     let orbitals = coupler.layout.orbitals().to_vec();
     let max_l = orbitals.iter().map(|o| o.l).max().unwrap_or(0);
-    let ck = CkTable::new(max_l);
+    let ck = CkTable::shared(max_l);
     let mut cache = StateCache::default();
 
     // Coulomb and configuration interaction per (L, 2S).
@@ -519,7 +519,7 @@ pub(crate) fn build_block(
                 .any(|&d| d != c && interactions.contains(&(c.min(d), c.max(d))))
         })
         .collect();
-    let mut racah: Vec<ConfigurationRacah> = match route {
+    let racah: Vec<ConfigurationRacah> = match route {
         Route::Racah => coupler
             .configurations
             .iter()
@@ -539,7 +539,7 @@ pub(crate) fn build_block(
         step += 1;
         progress(step, steps);
         let size = terms.len();
-        let mut matrices: BTreeMap<ParameterId, DMatrix<f64>> = BTreeMap::new();
+        let mut matrices: FxHashMap<ParameterId, DMatrix<f64>> = FxHashMap::default();
         if route == Route::Racah {
             for x in 0..size {
                 let a = &basis[terms[x]];
@@ -612,11 +612,11 @@ pub(crate) fn build_block(
                 }
             }
         }
-        ls_matrices.insert((l, two_s), (terms.clone(), matrices));
+        ls_matrices.insert((l, two_s), (terms.clone(), matrices.into_iter().collect()));
     }
 
     // Configuration averages of F^k and G^k: Σ_t (2L+1)(2S+1) C_tt / N_det.
-    let mut averages: HashMap<ParameterId, f64> = HashMap::new();
+    let mut averages: FxHashMap<ParameterId, f64> = FxHashMap::default();
     for (&(l, two_s), (terms, matrices)) in &ls_matrices {
         let weight = ((2 * l + 1) * (two_s + 1)) as f64;
         for (id, m) in matrices {
@@ -663,7 +663,7 @@ pub(crate) fn build_block(
 
     // Spin–orbit double-reduced matrix elements, per configuration and subshell.
     let mut spin_orbit: Vec<(usize, usize, ParameterId, f64)> = Vec::new();
-    let mut three_js: HashMap<(u32, u32, i32), f64> = HashMap::new();
+    let mut three_js: FxHashMap<(u32, u32, i32), f64> = FxHashMap::default();
     for (local, config) in coupler.configurations.iter().enumerate() {
         let terms: Vec<usize> = (0..basis.len())
             .filter(|&t| basis[t].local_configuration == local)
@@ -690,8 +690,10 @@ pub(crate) fn build_block(
             };
             // Each state at each (M_L, 2M_S) asked, plain and weighted by l_z s_z
             // of this subshell, made once.
-            let mut plain: HashMap<(usize, i32, i32), Arc<DeterminantVector>> = HashMap::new();
-            let mut weighted: HashMap<(usize, i32, i32), DeterminantVector> = HashMap::new();
+            let mut plain: FxHashMap<(usize, i32, i32), Arc<DeterminantVector>> =
+                FxHashMap::default();
+            let mut weighted: FxHashMap<(usize, i32, i32), DeterminantVector> =
+                FxHashMap::default();
             for (x, &t) in terms.iter().enumerate() {
                 for &u in &terms[x..] {
                     let (a, b) = (&basis[t], &basis[u]);
@@ -751,8 +753,38 @@ pub(crate) fn build_block(
     // J blocks.
     let mut j_blocks = Vec::new();
     let mut j_coefficients = Vec::new();
-    // 6j symbols repeat across pairs of states: compute each once.
-    let mut six_js: HashMap<[u32; 5], f64> = HashMap::new();
+    // Every parameter of the block, indexed: elements are gathered per index.
+    let mut ids: Vec<ParameterId> = coupler
+        .configurations
+        .iter()
+        .map(|c| ParameterId {
+            scope: Scope::Configuration(c.configuration),
+            radial: Radial::Average,
+        })
+        .chain(ls_matrices.values().flat_map(|(_, m)| m.keys().copied()))
+        .chain(spin_orbit.iter().map(|e| e.2))
+        .collect();
+    ids.sort_unstable();
+    ids.dedup();
+    let index_of = |id: &ParameterId| ids.binary_search(id).ok();
+    // The 6j symbol {L S J; S' L' 1} of a spin–orbit element depends on J and on
+    // the class (L, S, S', L') of its pair of states: one value per class and J.
+    let mut class_of: FxHashMap<[u32; 4], usize> = FxHashMap::default();
+    let mut classes: Vec<[u32; 4]> = Vec::new();
+    // (row state, column state, parameter index, class, reduced element).
+    let mut spin_orbit_elements: Vec<(usize, usize, usize, usize, f64)> = Vec::new();
+    for &(t, u, id, reduced) in &spin_orbit {
+        let (a, b) = (&basis[t], &basis[u]);
+        let key = [2 * a.l, a.two_s, b.two_s, 2 * b.l];
+        let class = *class_of.entry(key).or_insert_with(|| {
+            classes.push(key);
+            classes.len() - 1
+        });
+        if let Some(p) = index_of(&id) {
+            spin_orbit_elements.push((t, u, p, class, reduced));
+        }
+    }
+    let mut six_js: Vec<f64> = vec![f64::NAN; classes.len()];
     // Position of each basis state in the current J block.
     let mut local: Vec<Option<u32>> = vec![None; basis.len()];
     for two_j in two_js {
@@ -766,19 +798,18 @@ pub(crate) fn build_block(
         for (x, &t) in states.iter().enumerate() {
             local[t] = Some(x as u32);
         }
-        // Elements (row, column, value) of each parameter, gathered unsorted; an
-        // element written twice keeps its last value.
-        let mut elements: BTreeMap<ParameterId, Vec<(u32, u32, f64)>> = BTreeMap::new();
+        six_js.iter_mut().for_each(|x| *x = f64::NAN);
+        // Elements (row, column, value) of each parameter, each given once.
+        let mut elements: Vec<Vec<(u32, u32, f64)>> = vec![Vec::new(); ids.len()];
         // E_av: the identity on each configuration's states.
         for (x, &t) in states.iter().enumerate() {
             let id = ParameterId {
                 scope: Scope::Configuration(basis[t].configuration),
                 radial: Radial::Average,
             };
-            elements
-                .entry(id)
-                .or_default()
-                .push((x as u32, x as u32, 1.0));
+            if let Some(p) = index_of(&id) {
+                elements[p].push((x as u32, x as u32, 1.0));
+            }
         }
         // Coulomb, CI: copy the (L, S) matrices, group by group.
         for (terms, matrices) in ls_matrices.values() {
@@ -791,7 +822,10 @@ pub(crate) fn build_block(
                 continue;
             }
             for (id, m) in matrices {
-                let list = elements.entry(*id).or_default();
+                let Some(p) = index_of(id) else {
+                    continue;
+                };
+                let list = &mut elements[p];
                 for &(xt, x) in &here {
                     for &(xu, y) in &here {
                         let value = m[(xt, xu)];
@@ -803,29 +837,32 @@ pub(crate) fn build_block(
             }
         }
         // Spin–orbit.
-        for &(t, u, id, reduced) in &spin_orbit {
+        for &(t, u, p, class, reduced) in &spin_orbit_elements {
             let (Some(x), Some(y)) = (local[t], local[u]) else {
                 continue;
             };
-            let (a, b) = (&basis[t], &basis[u]);
-            let sixj = *six_js
-                .entry([2 * a.l, a.two_s, two_j, b.two_s, 2 * b.l])
-                .or_insert_with(|| {
-                    six_j([2 * a.l, a.two_s, two_j, b.two_s, 2 * b.l, 2]).unwrap_or(0.0)
-                });
-            let sign = phase(((2 * b.l + a.two_s + two_j) / 2) as i64);
-            let value = sign * sixj * reduced;
+            let [two_l, two_s, two_s_ket, two_l_ket] = classes[class];
+            if six_js[class].is_nan() {
+                six_js[class] =
+                    six_j([two_l, two_s, two_j, two_s_ket, two_l_ket, 2]).unwrap_or(0.0);
+            }
+            let sign = phase(((two_l_ket + two_s + two_j) / 2) as i64);
+            let value = sign * six_js[class] * reduced;
             if value.abs() > ZERO {
-                let list = elements.entry(id).or_default();
+                let list = &mut elements[p];
                 list.push((x, y, value));
-                list.push((y, x, value));
+                if x != y {
+                    list.push((y, x, value));
+                }
             }
         }
         let matrices: BTreeMap<ParameterId, CoefficientMatrix> = elements
             .into_iter()
-            .filter_map(|(id, list)| {
+            .enumerate()
+            .filter(|(_, list)| !list.is_empty())
+            .filter_map(|(p, list)| {
                 let m = CoefficientMatrix::from_elements(n, list);
-                (m.largest() > ZERO).then_some((id, m))
+                (m.largest() > ZERO).then_some((ids[p], m))
             })
             .collect();
         j_blocks.push(JBlock {

@@ -30,6 +30,7 @@
 //! The determinant route in [`super::hamiltonian`] gives the same matrices (the
 //! tests compare both) and still makes the configuration-interaction elements.
 
+use std::cell::RefCell;
 use std::collections::BTreeMap;
 use std::sync::{Arc, Mutex, OnceLock};
 
@@ -38,7 +39,7 @@ use rustc_hash::FxHashMap;
 use super::basis::BasisTerm;
 use super::orbital::Orbital;
 use super::parameter::Radial;
-use super::shell::{ShellTerms, shared_shell_terms};
+use super::shell::{MAX_SHELL_L, ShellTerms, shared_shell_terms};
 use crate::angular::{CkTable, nine_j, three_j, triangle};
 
 /// Coefficients smaller than this are exact zeros blurred by rounding.
@@ -339,7 +340,15 @@ pub(crate) struct ConfigurationRacah {
     shells: Vec<OpenShellData>,
     /// For each pair a < b of open subshells: (direct parts, exchange parts).
     pairs: FxHashMap<(usize, usize), PairData>,
-    nine_js: FxHashMap<[u32; 9], f64>,
+    nine_js: RefCell<FxHashMap<[u32; 9], f64>>,
+}
+
+/// Number of (κ, t) pairs of two-subshell operators: κ = 0, 1 and t ≤ 2·MAX_SHELL_L.
+const KINDS: usize = 2 * (2 * MAX_SHELL_L as usize + 1);
+
+/// Position of (κ, t) in an array of [`KINDS`].
+fn kind_index(kappa: u32, t: u32) -> usize {
+    kappa as usize * (2 * MAX_SHELL_L as usize + 1) + t as usize
 }
 
 /// Orbit or spin.
@@ -388,13 +397,14 @@ impl ConfigurationRacah {
         ConfigurationRacah {
             shells,
             pairs,
-            nine_js: FxHashMap::default(),
+            nine_js: RefCell::new(FxHashMap::default()),
         }
     }
 
-    fn nine(&mut self, args: [u32; 9]) -> f64 {
+    fn nine(&self, args: [u32; 9]) -> f64 {
         *self
             .nine_js
+            .borrow_mut()
             .entry(args)
             .or_insert_with(|| nine_j(args).unwrap_or(0.0))
     }
@@ -413,7 +423,7 @@ impl ConfigurationRacah {
     /// `rank(c)` on subshell c, coupled rank `total(c)` after subshell c (all
     /// doubled). The subshells' own reduced elements are not included.
     fn chain(
-        &mut self,
+        &self,
         bra: &BasisTerm,
         ket: &BasisTerm,
         space: Space,
@@ -465,7 +475,7 @@ impl ConfigurationRacah {
 
     /// The Coulomb coefficients between two LS terms of this configuration with
     /// the same (L, S), pushed as (radial parameter, value).
-    pub fn coulomb(&mut self, bra: &BasisTerm, ket: &BasisTerm, out: &mut Vec<(Radial, f64)>) {
+    pub fn coulomb(&self, bra: &BasisTerm, ket: &BasisTerm, out: &mut Vec<(Radial, f64)>) {
         let n = self.shells.len();
         // Within one subshell: a scalar of that subshell, diagonal in everything else.
         if bra.couplings == ket.couplings {
@@ -508,14 +518,14 @@ impl ConfigurationRacah {
                 if spectators == 0.0 {
                     continue;
                 }
-                // Each (κ, t) once, then every k that uses it.
-                let Some(kinds) = self.pairs.get(&(a, b)).map(|p| p.2.clone()) else {
+                let Some((direct, exchange, kinds)) = self.pairs.get(&(a, b)) else {
                     continue;
                 };
                 let (oa, ob) = (self.shells[a].orbital, self.shells[b].orbital);
                 let (first, second) = (oa.min(ob), oa.max(ob));
-                let mut products: Vec<((u32, u32), f64)> = Vec::with_capacity(kinds.len());
-                for (kappa, t) in kinds {
+                // The recoupled W(a)·W(b) of each (κ, t), at κ·(2·MAX_SHELL_L+1) + t.
+                let mut products = [0.0; KINDS];
+                for &(kappa, t) in kinds {
                     let wa =
                         self.shells[a]
                             .tables
@@ -547,24 +557,14 @@ impl ConfigurationRacah {
                     );
                     let scalar =
                         phase((kappa + t) as i64) * (((2 * kappa + 1) * (2 * t + 1)) as f64).sqrt();
-                    products.push((
-                        (kappa, t),
-                        scalar * wa * wb * spectators * orbit * spin / outer,
-                    ));
+                    products[kind_index(kappa, t)] =
+                        scalar * wa * wb * spectators * orbit * spin / outer;
                 }
-                let Some((direct, exchange, _)) = self.pairs.get(&(a, b)) else {
-                    continue;
-                };
                 for (parts, is_exchange) in [(direct, false), (exchange, true)] {
                     for (k, x) in parts {
                         let value: f64 = x
                             .iter()
-                            .filter_map(|&(kappa, t, c)| {
-                                products
-                                    .iter()
-                                    .find(|(kt, _)| *kt == (kappa, t))
-                                    .map(|(_, p)| c * p)
-                            })
+                            .map(|&(kappa, t, c)| c * products[kind_index(kappa, t)])
                             .sum();
                         if value.abs() > ZERO {
                             let radial = if is_exchange {
@@ -593,7 +593,7 @@ impl ConfigurationRacah {
     /// √(l(l+1)(2l+1)·3/2) ⟨α_a‖W^(11)‖α'_a⟩ recoupled along the chain, rank 1 in
     /// orbit and spin from subshell a on. Zero unless the other subshells' terms
     /// and the couplings before a agree.
-    pub fn spin_orbit(&mut self, bra: &BasisTerm, ket: &BasisTerm, a: usize) -> f64 {
+    pub fn spin_orbit(&self, bra: &BasisTerm, ket: &BasisTerm, a: usize) -> f64 {
         if bra.couplings[..a] != ket.couplings[..a] {
             return 0.0;
         }
