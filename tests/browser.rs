@@ -4,9 +4,10 @@
 //!
 //! Chromium is looked for as `$TERMSIGHT_CHROMIUM`, then `chromium` and
 //! `chromium-browser` on the PATH. Without it the test says so on standard output and
-//! passes, except under CI (the environment variable `CI` set), where it fails:
+//! passes (the message goes to standard error past the harness' capture), except under CI (the environment variable `CI` set), where it fails:
 //! `.ci/run` installs Debian's `chromium`, so a missing browser there is a broken set-up.
 
+use std::io::Write as _;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Stdio};
 use std::time::{Duration, Instant};
@@ -79,7 +80,9 @@ fn the_report_of_the_shipped_example_shows_in_a_headless_browser() {
             std::env::var_os("CI").is_none(),
             "{message}; CI must have it"
         );
-        println!("{message}: SKIPPED");
+        // Straight to the standard error, past the test harness' capture, so that the
+        // skip shows in every run.
+        let _ = writeln!(std::io::stderr(), "{message}: SKIPPED");
         return;
     };
     let dir = tempfile::tempdir().unwrap();

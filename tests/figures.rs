@@ -773,6 +773,60 @@ fn plot_outputs_of_optimize_fit_and_lines_are_written_where_asked_and_render() {
             diagram.to_str().unwrap(),
         ],
     );
+    // The level search's candidates marked in the diagram: every line searched, so
+    // that the search finds the known levels again (flagged `coincides`); one mark
+    // per candidate energy of the CSV (common practice, no source).
+    run_in(
+        work,
+        &[
+            "find-levels",
+            "assigned.csv",
+            "--species",
+            "He I",
+            "--all-lines",
+            "--min-lines",
+            "2",
+            "--max-probability",
+            "1",
+            "--format",
+            "csv",
+            "-o",
+            "new.csv",
+        ],
+    );
+    let new_levels = std::fs::read_to_string(work.join("new.csv")).unwrap();
+    let mut energies: Vec<&str> = new_levels
+        .lines()
+        .filter(|l| l.starts_with("He I,"))
+        .filter_map(|l| l.split(',').nth(4))
+        .collect();
+    energies.dedup();
+    assert!(!energies.is_empty(), "{new_levels}");
+    let marked = work.join("marked.svg");
+    run_in(
+        work,
+        &[
+            "optimize",
+            "assigned.csv",
+            "--diagram-species",
+            "He I",
+            "--term-diagram",
+            marked.to_str().unwrap(),
+            "--candidate-levels",
+            "new.csv",
+        ],
+    );
+    let marked = std::fs::read_to_string(&marked).unwrap();
+    assert_eq!(
+        marked.matches(r#"class="candidate""#).count(),
+        energies.len()
+    );
+    check_figure(
+        "optimize-marked",
+        &marked,
+        &["Term diagram of He I", "candidates"],
+    );
+
     let models = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("examples/level-models");
     run_in(
         work,

@@ -11,15 +11,15 @@ use super::assign::AirFormulaArg;
 use super::input::open_input;
 use super::output::{write_atomically, write_output};
 use super::paths::{NamedPath, check_outputs};
-use crate::levels::LevelLabel;
 use crate::levels::optimize::OptimizationReport;
 use crate::levels::optimize::{
     BlendPolicy, ClassifiedLines, OptimizeOptions, SpectrumError, optimize_classified,
     read_classified_lines,
 };
+use crate::levels::{Level, LevelLabel, read_level_table};
 use crate::notation::Species;
 use crate::report::figures::{
-    ritz_residuals_from, ritz_residuals_svg, term_diagram_from, term_diagram_svg,
+    ExtraLevel, ritz_residuals_from, ritz_residuals_svg, term_diagram_from, term_diagram_svg,
 };
 use crate::report::{
     OptimizeContext, optimize_json, optimize_table, optimized_levels_csv, optimized_lines_csv,
@@ -129,6 +129,15 @@ pub struct OptimizeArgs {
     /// The spectrum of the term diagram. [default: the one with most levels]
     #[arg(long = "diagram-species", value_name = "SPECTRUM")]
     pub diagram_species: Option<String>,
+    /// Mark in the term diagram the candidate new levels in FILE: the CSV that
+    /// `termsight find-levels --format csv` writes (a level table, one row per
+    /// candidate and possible J); rows of other spectra are left out.
+    #[arg(
+        long = "candidate-levels",
+        value_name = "FILE",
+        requires = "term_diagram"
+    )]
+    pub candidate_levels: Option<PathBuf>,
 }
 
 /// Run `termsight optimize`.
@@ -146,14 +155,25 @@ pub fn run(args: OptimizeArgs) -> Result<(), CliError> {
             path,
         });
     }
-    check_outputs(
-        &[NamedPath {
-            option: "ASSIGNED",
-            path: &args.assigned,
-        }],
-        &outputs,
-        args.overwrite_input,
-    )?;
+    for (option, path) in [
+        ("--plot", &args.plot),
+        ("--term-diagram", &args.term_diagram),
+    ] {
+        if let Some(path) = path {
+            outputs.push(NamedPath { option, path });
+        }
+    }
+    let mut inputs = vec![NamedPath {
+        option: "ASSIGNED",
+        path: &args.assigned,
+    }];
+    if let Some(path) = &args.candidate_levels {
+        inputs.push(NamedPath {
+            option: "--candidate-levels",
+            path,
+        });
+    }
+    check_outputs(&inputs, &outputs, args.overwrite_input)?;
     let options = options(&args)?;
     let default_species = args
         .species
@@ -164,6 +184,16 @@ pub fn run(args: OptimizeArgs) -> Result<(), CliError> {
         })
         .transpose()?;
     let input = read_input(&args, default_species)?;
+    // Read before the work, so that a broken file stops at once.
+    let candidates = match &args.candidate_levels {
+        Some(path) => {
+            let (reader, name) = open_input(path)?;
+            read_level_table(reader, &name)
+                .map_err(|e| CliError::Message(format!("--candidate-levels: {e}")))?
+                .levels
+        }
+        None => Vec::new(),
+    };
     let report = optimize_classified(&input, &options).map_err(|e| match e {
         // Already names the file, line and column.
         SpectrumError::WidenedTooFar { .. } => CliError::Message(e.to_string()),
@@ -209,17 +239,20 @@ pub fn run(args: OptimizeArgs) -> Result<(), CliError> {
                     .map_err(|e| CliError::Message(format!("--diagram-species: {e}")))
             })
             .transpose()?;
-        let svg = diagram_of(&input, &report, species)?;
+        let svg = diagram_of(&input, &report, species, &candidates)?;
         write_atomically(path, svg.as_bytes())?;
     }
     Ok(())
 }
 
-/// The term diagram of `species`, or of the spectrum with most levels.
+/// The term diagram of `species`, or of the spectrum with most levels, with the
+/// `candidates` of that spectrum marked (rows of one energy taken as one candidate
+/// with several possible J, as `find-levels` writes them).
 pub(crate) fn diagram_of(
     input: &ClassifiedLines,
     report: &OptimizationReport,
     species: Option<Species>,
+    candidates: &[Level],
 ) -> Result<String, CliError> {
     let result = match species {
         Some(s) => report
@@ -244,7 +277,24 @@ pub(crate) fn diagram_of(
             .max_by_key(|r| r.levels.len())
             .ok_or_else(|| CliError::Message("--term-diagram: no levels were optimised".into()))?,
     };
-    let diagram = term_diagram_from(&input.source, result, input, Vec::new());
+    let mut extra: Vec<ExtraLevel> = Vec::new();
+    for level in candidates.iter().filter(|l| l.species == result.species) {
+        let parity = level.label.parity();
+        match extra
+            .iter_mut()
+            .find(|e| e.energy_cm1 == level.energy_cm1 && e.parity == parity)
+        {
+            Some(e) if !e.j.contains(&level.label.j) => e.j.push(level.label.j),
+            Some(_) => {}
+            None => extra.push(ExtraLevel {
+                energy_cm1: level.energy_cm1,
+                parity,
+                j: vec![level.label.j],
+                label: format!("{:.2}", level.energy_cm1),
+            }),
+        }
+    }
+    let diagram = term_diagram_from(&input.source, result, input, extra);
     term_diagram_svg(&diagram).map_err(|e| CliError::Message(format!("--term-diagram: {e}")))
 }
 
