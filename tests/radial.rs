@@ -151,12 +151,19 @@ fn starting_model_of_helium_runs_through_levels_and_lines() {
     let observed = helium_level("1s.2p", "1P°", "1") - helium_level("1s.2p", "3P°", "1");
     let ratio = splitting / observed;
     assert!((0.8..1.2).contains(&ratio), "1s2p ¹P–³P ratio {ratio}");
-    // Excitation energies come out 5 % low (151211 against 159856 cm⁻¹ for
-    // 1s2s ³S): Hartree–Fock lacks the correlation energy of 1s², about 0.042
-    // hartree = 9200 cm⁻¹ (Clementi & Roetti 1974 against the exact −2.9037
-    // hartree, values from memory).
-    let ratio = energy("1s.2s 3S", "1") / helium_level("1s.2s", "3S", "1");
-    assert!((0.93..0.97).contains(&ratio), "1s2s ³S ratio {ratio}");
+    // Excitation energies come out low (151211 against 159856 cm⁻¹ for 1s2s ³S):
+    // Hartree–Fock lacks the correlation energy, which is larger in 1s² than in
+    // 1s2s ³S. Expected deficit: [E_exact − E_HF](1s²) − [E_exact − E_HF](2³S) =
+    // (−2.903724 + 2.861680) − (−2.175229 + 2.174250) hartree = 0.041065 hartree
+    // = 9013 cm⁻¹ (exact: Pekeris 1959 and Drake 2006; Hartree–Fock: Clementi &
+    // Roetti 1974 and Froese Fischer 1977; values from memory). Tolerance: the
+    // model's 2³S is E_av − 0.85 G⁰/2 from E_av orbitals, not the ³S Hartree–Fock
+    // energy: 0.0015 hartree = 340 cm⁻¹ above it here, so 600 cm⁻¹.
+    let deficit = helium_level("1s.2s", "3S", "1") - energy("1s.2s 3S", "1");
+    assert!(
+        (deficit - 9013.0).abs() < 600.0,
+        "1s2s ³S deficit {deficit}"
+    );
 
     let lines = termsight(&["lines", model, "--format", "csv"]);
     assert!(
@@ -172,11 +179,19 @@ fn starting_model_of_helium_runs_through_levels_and_lines() {
         .map(|l| l.split(',').collect::<Vec<_>>())
         .find(|f| f[column("upper_configuration")] == "1s.2p" && f[column("upper_term")] == "1P°")
         .unwrap_or_else(|| panic!("no 1s2p ¹P line in {lines}"));
-    // The resonance line 58.4 nm: f = 0.2762 (Drake's variational value, from
-    // memory); the single-configuration orbitals give 0.32, 17 % high, as
-    // Hartree–Fock length-form f-values of He are.
+    // The resonance line 58.4 nm: f = 0.2762 (the published value of NIST ASD and
+    // of variational calculations, from memory: the line is outside the published
+    // tables of reference-levels). Single-configuration length-form f-values of
+    // light atoms are good to about 25 % (common practice, no source); these
+    // orbitals give 0.32.
+    let published = 0.2762;
     let gf: f64 = resonance[column("gf")].parse().unwrap();
-    assert!((gf / 0.2762 - 1.17).abs() < 0.05, "gf {gf}");
+    assert!(
+        (gf / published - 1.0).abs() < 0.25,
+        "gf {gf}, published {published}"
+    );
+    // Regression pin (our own output): 1.17 of the published value.
+    assert!((gf / published - 1.17).abs() < 0.05, "gf {gf}");
 }
 
 #[test]
@@ -280,4 +295,89 @@ fn scale_method_and_quiet_options_act() {
         energy > -2.8616800 && energy < -2.8616800 * 0.99,
         "{energy}"
     );
+}
+
+/// The integrals of a `radial --format json` run of beryllium 2s², 2s2p, 2p², with
+/// `extra` options, by (name, configuration index).
+fn beryllium_integrals(extra: &[&str]) -> Vec<(String, u64, f64, f64)> {
+    let mut args = vec![
+        "radial",
+        "--element",
+        "Be",
+        "--config",
+        "1s2 2s2",
+        "--config",
+        "1s2 2s 2p",
+        "--config",
+        "1s2 2p2",
+        "--format",
+        "json",
+        "--quiet",
+    ];
+    args.extend_from_slice(extra);
+    let output = termsight(&args);
+    assert!(
+        output.status.success(),
+        "{}",
+        String::from_utf8_lossy(&output.stderr)
+    );
+    let json: serde_json::Value = serde_json::from_slice(&output.stdout).unwrap();
+    json["integrals"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|i| {
+            (
+                i["name"].as_str().unwrap().to_string(),
+                i["configuration"].as_u64().unwrap(),
+                i["value"].as_f64().unwrap(),
+                i["scaled"].as_f64().unwrap(),
+            )
+        })
+        .collect()
+}
+
+#[test]
+fn each_scale_option_scales_its_own_family_and_nothing_else() {
+    // The README's definition of the scale options: --scale-interaction multiplies
+    // the R^k between configurations, --scale-zeta the ζ, --scale-eav the E_av
+    // differences, each leaving the computed value and every other family alone
+    // (the orbitals do not depend on the scaling). Families of Be 2s², 2s2p, 2p²
+    // (common practice, no source): R¹(2s2s,2p2p) between 2s² and 2p², ζ(2p) in the
+    // odd and the even configuration, E_av of 2s2p and 2p² above 2s².
+    let default = beryllium_integrals(&[]);
+    let family = |name: &str| -> &'static str {
+        match name.split('(').next().unwrap_or("") {
+            "Eav" => "--scale-eav",
+            "zeta" => "--scale-zeta",
+            n if n.starts_with('R') => "--scale-interaction",
+            n if n.starts_with('F') || n.starts_with('G') => "--scale-slater",
+            _ => "none",
+        }
+    };
+    for flag in ["--scale-interaction", "--scale-zeta", "--scale-eav"] {
+        let scaled = beryllium_integrals(&[flag, "0.5"]);
+        assert_eq!(scaled.len(), default.len(), "{flag}");
+        let mut acted = 0;
+        for (ours, reference) in scaled.iter().zip(&default) {
+            let (name, config, value, scaled_value) = ours;
+            assert_eq!((name, config), (&reference.0, &reference.1), "{flag}");
+            assert_eq!(*value, reference.2, "{flag}: {name} value changed");
+            if family(name) == flag {
+                assert!(
+                    (scaled_value - 0.5 * value).abs() <= 1e-12 * value.abs(),
+                    "{flag}: {name} {value} {scaled_value}"
+                );
+                acted += usize::from(*value != 0.0);
+            } else {
+                assert_eq!(*scaled_value, reference.3, "{flag}: {name} changed");
+            }
+        }
+        // R¹ once; ζ(2p) twice; E_av of 2s2p and 2p².
+        let expected = match flag {
+            "--scale-interaction" => 1,
+            _ => 2,
+        };
+        assert_eq!(acted, expected, "{flag}");
+    }
 }

@@ -263,6 +263,10 @@ fn the_evaluation_limit_holds_and_is_said() {
             "{report}"
         );
         assert!(!report.contains("Converged"), "{report}");
+        // Grammar (common practice, no source): one evaluation, not "1 evaluations".
+        if limit == 1 {
+            assert!(report.contains("(1 evaluation of the levels"), "{report}");
+        }
     }
 }
 

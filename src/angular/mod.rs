@@ -45,7 +45,7 @@ mod wigner;
 pub use exact::SignedSqrt;
 pub use gaunt::{CkTable, ck, ck_exact};
 pub use wigner::{
-    clebsch_gordan, clebsch_gordan_exact, six_j, six_j_exact, three_j, three_j_exact,
+    clebsch_gordan, clebsch_gordan_exact, nine_j, six_j, six_j_exact, three_j, three_j_exact,
 };
 
 /// The largest doubled angular momentum accepted (j ≤ 200): it bounds the

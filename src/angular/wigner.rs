@@ -1,4 +1,5 @@
-//! Wigner 3j and 6j symbols by Racah's formulas, and Clebsch–Gordan coefficients.
+//! Wigner 3j and 6j symbols by Racah's formulas, 9j symbols from 6j, and
+//! Clebsch–Gordan coefficients.
 
 use std::collections::HashMap;
 use std::hash::Hash;
@@ -180,6 +181,55 @@ pub fn six_j(two_j: [u32; 6]) -> Result<f64, AngularError> {
     memoised(&CACHE, two_j, || six_j_exact(two_j).map(|v| v.to_f64()))
 }
 
+/// The Wigner 9j symbol {j₁ j₂ j₃; j₄ j₅ j₆; j₇ j₈ j₉} as `f64`, arguments
+/// doubled and given row by row, as the sum of products of three 6j symbols
+/// (Edmonds 1957, eq. 6.4.3, from memory):
+/// Σ_x (−1)^(2x) (2x+1) {j₁ j₄ j₇; j₈ j₉ x} {j₂ j₅ j₈; j₄ x j₆} {j₃ j₆ j₉; x j₁ j₂}.
+/// Each 6j is exact and rounded once, so the sum carries a few ulps of rounding.
+///
+/// Returns 0 when a row or column breaks the triangle rule; an error when a row
+/// or column sum is not an integer. Values are remembered.
+pub fn nine_j(two_j: [u32; 9]) -> Result<f64, AngularError> {
+    if let Some(&two_j) = two_j.iter().find(|&&j| j > MAX_TWO_J) {
+        return Err(AngularError::TooLarge { two_j });
+    }
+    let [j1, j2, j3, j4, j5, j6, j7, j8, j9] = two_j;
+    let lines = [
+        [j1, j2, j3],
+        [j4, j5, j6],
+        [j7, j8, j9],
+        [j1, j4, j7],
+        [j2, j5, j8],
+        [j3, j6, j9],
+    ];
+    for triad in lines {
+        if !(triad[0] + triad[1] + triad[2]).is_multiple_of(2) {
+            return Err(AngularError::HalfIntegerTriad { triad });
+        }
+    }
+    if !lines.iter().all(|t| triangle(t[0], t[1], t[2])) {
+        return Ok(0.0);
+    }
+    static CACHE: Memo<[u32; 9]> = OnceLock::new();
+    memoised(&CACHE, two_j, || {
+        // x couples with j₁ and j₉, j₈ and j₄, j₂ and j₆.
+        let low = j1.abs_diff(j9).max(j4.abs_diff(j8)).max(j2.abs_diff(j6));
+        let high = (j1 + j9).min(j4 + j8).min(j2 + j6);
+        let mut sum = 0.0;
+        let mut x = low;
+        while x <= high {
+            let term = six_j([j1, j4, j7, j8, j9, x])?
+                * six_j([j2, j5, j8, j4, x, j6])?
+                * six_j([j3, j6, j9, x, j1, j2])?;
+            // (−1)^(2x) with 2x = x doubled.
+            let sign = if x.is_multiple_of(2) { 1.0 } else { -1.0 };
+            sum += sign * (x as f64 + 1.0) * term;
+            x += 2;
+        }
+        Ok(sum)
+    })
+}
+
 /// The exact Clebsch–Gordan coefficient ⟨j₁ m₁ j₂ m₂ | J M⟩ (Condon–Shortley
 /// phase), arguments doubled:
 /// ⟨j₁ m₁ j₂ m₂ | J M⟩ = (−1)^(j₁−j₂+M) √(2J+1) (j₁ j₂ J; m₁ m₂ −M)
@@ -225,6 +275,45 @@ pub fn clebsch_gordan(
 mod tests {
     use super::*;
     use proptest::prelude::*;
+
+    #[test]
+    fn nine_j_values() {
+        // Values from sympy 1.14 (sympy.physics.wigner.wigner_9j, exact: 1/18, √7/60,
+        // 1/315, 41/2450, √21/2100), rows given
+        // in order, angular momenta doubled.
+        let cases: [([u32; 9], f64); 5] = [
+            ([2, 2, 2, 2, 2, 2, 2, 2, 0], 1.0 / 18.0),
+            ([4, 2, 2, 1, 1, 2, 5, 3, 4], 7f64.sqrt() / 60.0),
+            ([6, 4, 2, 5, 1, 4, 7, 5, 6], 1.0 / 315.0),
+            ([4, 4, 4, 4, 4, 4, 4, 4, 4], 41.0 / 2450.0),
+            ([6, 6, 4, 3, 3, 2, 5, 3, 2], 21f64.sqrt() / 2100.0),
+        ];
+        for (args, want) in cases {
+            let got = nine_j(args).unwrap();
+            assert!((got - want).abs() < 1e-14, "{args:?}: {got} vs {want}");
+        }
+        // A triangle broken in a column: zero; a half-integer row sum: an error.
+        assert_eq!(nine_j([2, 2, 2, 2, 2, 2, 8, 2, 2]).unwrap(), 0.0);
+        assert!(nine_j([1, 2, 2, 2, 2, 2, 2, 2, 2]).is_err());
+    }
+
+    #[test]
+    fn nine_j_with_a_zero_is_a_six_j() {
+        // {a b e; c d e; f f 0} = (−1)^(b+c+e+f) {a b e; d c f} / √((2e+1)(2f+1))
+        // (Edmonds 1957, eq. 6.4.14, from memory).
+        for (a, b, c, d, e, f) in [(2, 2, 2, 2, 2, 4), (3, 1, 4, 2, 2, 3), (6, 4, 1, 3, 4, 5)] {
+            let nine = nine_j([a, b, e, c, d, e, f, f, 0]).unwrap();
+            let six = six_j([a, b, e, d, c, f]).unwrap();
+            let sign = if ((b + c + e + f) / 2) % 2 == 0 {
+                1.0
+            } else {
+                -1.0
+            };
+            let want = sign * six / (((e + 1) * (f + 1)) as f64).sqrt();
+            assert!((nine - want).abs() < 1e-14, "{nine} vs {want}");
+            assert!(want.abs() > 1e-6, "the check must not be a zero");
+        }
+    }
 
     #[test]
     fn spin_coupling_coefficients() {

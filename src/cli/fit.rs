@@ -175,10 +175,11 @@ pub fn run(args: FitArgs) -> Result<(), CliError> {
         if !quiet && start.elapsed() >= PROGRESS_AFTER {
             let _ = writeln!(
                 std::io::stderr(),
-                "fit: iteration {}, rms of E_exp − E_calc {:.6} cm⁻¹ ({} evaluations, {:.1} s)",
+                "fit: iteration {}, rms of E_exp − E_calc {:.6} cm⁻¹ ({} evaluation{}, {:.1} s)",
                 p.iteration,
                 p.rms_cm1,
                 p.evaluations,
+                if p.evaluations == 1 { "" } else { "s" },
                 start.elapsed().as_secs_f64()
             );
         }

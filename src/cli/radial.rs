@@ -17,8 +17,8 @@ use clap::ValueEnum;
 
 use crate::notation::{Configuration, Species, element};
 use crate::radial::{
-    GridRemedy, GridSpec, RadialError, ScaleFactors, ScfObserver, ScfOptions, ScfProgress,
-    ScfSolution, ScfStage, hartree_fock, local_exchange, model_file, radial_integrals,
+    GridRemedy, GridSpec, PairMixing, RadialError, ScaleFactors, ScfObserver, ScfOptions,
+    ScfProgress, ScfSolution, ScfStage, hartree_fock, local_exchange, model_file, radial_integrals,
     screened_hydrogenic, starting_model,
 };
 use crate::report::{RadialReport, radial_json, radial_table, relativistic_note};
@@ -60,6 +60,10 @@ pub struct RadialArgs {
     /// How the orbitals are obtained.
     #[arg(long, value_enum, default_value_t = MethodChoice::HartreeFock)]
     pub method: MethodChoice,
+    /// Hartree–Fock: how the mixing of two orbitals of one l is fixed when the
+    /// inner one is open (He 1s2s, Mg 3s4s).
+    #[arg(long, value_enum, default_value_t = PairMixingChoice::InnerEigenfunction)]
+    pub pair_mixing: PairMixingChoice,
     /// Scale factor for F^k and G^k (customary for neutral atoms: 0.8–0.9).
     #[arg(long, default_value_t = 0.85, value_name = "FACTOR")]
     pub scale_slater: f64,
@@ -106,6 +110,19 @@ pub enum MethodChoice {
     LocalExchange,
     /// Hydrogenic orbitals with effective charges by Slater's rules.
     Hydrogenic,
+}
+
+/// The choices of `--pair-mixing`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum PairMixingChoice {
+    /// The inner orbital an eigenfunction of its own operator in the pair: physical
+    /// exchange integrals, but E_av not stationary, so −V/T departs from 2
+    /// (He 1s2s: 2.014).
+    InnerEigenfunction,
+    /// E_av stationary in the mixing angle: −V/T = 2, but the orbitals localise and
+    /// the exchange integral comes out far too small (He 1s2s: G0 511 against
+    /// 2496 cm⁻¹).
+    Stationary,
 }
 
 /// The output formats of `--format`.
@@ -240,6 +257,10 @@ impl Request {
         let options = ScfOptions {
             grid,
             max_iterations: args.max_iterations,
+            pair_mixing: match args.pair_mixing {
+                PairMixingChoice::InnerEigenfunction => PairMixing::InnerEigenfunction,
+                PairMixingChoice::Stationary => PairMixing::Stationary,
+            },
             ..ScfOptions::default()
         };
         options
@@ -382,10 +403,11 @@ impl Progress {
             let mut stderr = io::stderr().lock();
             let _ = writeln!(
                 stderr,
-                "{}termsight radial: {}: done, {} iterations",
+                "{}termsight radial: {}: done, {} iteration{}",
                 if self.terminal { "\r\x1b[K" } else { "" },
                 self.label,
-                solution.iterations
+                solution.iterations,
+                if solution.iterations == 1 { "" } else { "s" }
             );
             self.printed = false;
         }

@@ -32,11 +32,12 @@
 //!    canonical ones that diagonalise the Fock matrix among them;
 //! 3. the other pairs of one l are fixed: by a Newton step on E_av in their
 //!    rotation angle when the inner orbital is closed (Froese Fischer 1977,
-//!    §7.4, "rotation analysis"), and otherwise by making the inner orbital an
-//!    eigenfunction of its own operator within the pair (see
-//!    the comment on `fix_mixing` in the source: this keeps excited configurations such as He 1s2s
-//!    from sliding towards the one with the vacancy filled; the virial theorem
-//!    then holds only approximately, since E_av is not stationary in that angle);
+//!    §7.4, "rotation analysis"); when it is open (He 1s2s), as
+//!    [`ScfOptions::pair_mixing`] says: by default by making the inner orbital
+//!    an eigenfunction of its own operator within the pair, which keeps the
+//!    exchange integral physical but leaves E_av not stationary in that angle, so
+//!    that the virial theorem holds only approximately; or by the same Newton
+//!    steps ([`PairMixing`] gives the numbers of both);
 //! 4. the orbitals are extrapolated from the last six iterations by Pulay's
 //!    method (DIIS).
 //!
@@ -54,7 +55,7 @@ use super::local_exchange;
 use super::numerov::{ShootingOptions, origin_ratio, solve_bound_state};
 use super::operator::NumerovKinetic;
 use super::scf::{
-    Method, Orbital, ScfObserver, ScfOptions, ScfProgress, ScfSolution, ScfStage,
+    Method, Orbital, PairMixing, ScfObserver, ScfOptions, ScfProgress, ScfSolution, ScfStage,
     check_orbitals_fit, checked_subshells, screened_hydrogenic,
 };
 use super::slater::{r_density, yk_function, yk_of_density};
@@ -171,6 +172,7 @@ fn solve(
         observer,
     )?;
     let mut solver = Solver::new(&start.grid, z, expression, orbitals);
+    solver.pair_mixing = options.pair_mixing;
     solver.lone_electrons_in_direct_field()?;
     let (iterations, residual) = solver.run(options, observer)?;
     let energy = solver.energy();
@@ -183,7 +185,11 @@ fn solve(
             });
         }
     }
-    check_orbitals_fit(&start.grid, &orbitals)?;
+    // The node count belongs to the space a pair spans, not to the angle chosen in
+    // it: check it with the inner orbitals made eigenfunctions within their pairs.
+    let mut aligned = solver.clone();
+    aligned.align_open_pairs();
+    check_orbitals_fit(&start.grid, &aligned.orbitals())?;
     Ok(ScfSolution {
         nuclear_charge,
         configuration: configuration.clone(),
@@ -207,8 +213,10 @@ struct ExchangeTerm {
     coefficient: f64,
 }
 
+#[derive(Clone)]
 struct Solver<'g> {
     grid: &'g RadialGrid,
+    pair_mixing: PairMixing,
     z: f64,
     expression: EnergyExpression,
     kinetic: Vec<NumerovKinetic>,
@@ -241,6 +249,7 @@ impl<'g> Solver<'g> {
         let count = orbitals.len();
         let mut solver = Solver {
             grid,
+            pair_mixing: PairMixing::default(),
             z,
             expression,
             kinetic,
@@ -707,9 +716,21 @@ impl<'g> Solver<'g> {
     /// outer electron's orthogonality.
     fn fix_mixing(&mut self) {
         for (a, b) in self.mixing_pairs() {
-            if self.expression.subshells[a].is_closed() {
+            if self.expression.subshells[a].is_closed()
+                || self.pair_mixing == PairMixing::Stationary
+            {
                 self.rotation_step(a, b);
             } else {
+                self.align_inner(a, b);
+            }
+        }
+    }
+
+    /// Make the inner orbital of each pair of one l with an open inner orbital an
+    /// eigenfunction of its own operator within the pair.
+    fn align_open_pairs(&mut self) {
+        for (a, b) in self.mixing_pairs() {
+            if !self.expression.subshells[a].is_closed() {
                 self.align_inner(a, b);
             }
         }
@@ -1130,8 +1151,12 @@ mod tests {
         // lacks its interaction with 1s² and 1s ns ¹S, which pushes it up (our
         // reading, not checked here). Term-dependent orbitals:
         // `helium_singlet_triplet_splittings_from_term_calculations`.
+        // Regression pins (our own output, not physics): 0.78 and 1.12.
         assert!((ratio_s - 0.78).abs() < 0.02, "1s2s: ratio {ratio_s}");
         assert!((ratio_p - 1.12).abs() < 0.02, "1s2p: ratio {ratio_p}");
+        // Physics: the customary scaling of Slater integrals by 0.8–0.9 for neutral
+        // atoms brings a splitting within about 20 % of the observed one (common
+        // practice, no source) where configuration interaction does not shift it.
         assert!(
             (0.85 * ratio_p - 1.0).abs() < 0.2,
             "1s2p scaled: {}",
@@ -1217,9 +1242,23 @@ mod tests {
         };
         let ratio_s = split(&s1, &s3) / observed_s;
         let ratio_p = split(&p1, &p3) / observed_p;
+        // Regression pins (our own output): 0.962 and 0.664.
         assert!((ratio_p - 0.962).abs() < 0.01, "1s2p: ratio {ratio_p}");
-        assert!((ratio_p - 1.0).abs() < 0.1, "1s2p: ratio {ratio_p}");
         assert!((ratio_s - 0.664).abs() < 0.01, "1s2s: ratio {ratio_s}");
+        // Physics, 1s2p: the published Hartree–Fock term energies (Froese Fischer
+        // 1977, from memory: ¹P −2.1225, ³P −2.13143 hartree) give 1960 cm⁻¹,
+        // 0.957 of the observed splitting; the ¹P value is remembered to 10⁻⁴
+        // hartree (22 cm⁻¹), hence 0.02.
+        let published_p = (-2.1225 + 2.13143) * HARTREE_CM1 / observed_p;
+        assert!(
+            (ratio_p - published_p).abs() < 0.02,
+            "1s2p: ratio {ratio_p}, published {published_p}"
+        );
+        // Physics, 1s2s: the ¹S solution lies below the exact 2¹S energy −2.1459740
+        // hartree (Drake 2006, from memory), so its splitting from the ³S solution
+        // (above the exact 2³S by its correlation energy) is below the observed one.
+        assert!(s1.energy.total_hartree < -2.1459740);
+        assert!(ratio_s < 1.0, "1s2s: ratio {ratio_s}");
 
         // Within the two-orbital space of the ¹S orbitals, the second root of the
         // ¹S matrix in 1s², (1s2s)¹S, 2s² (`term::two_s_electron_singlet_energies`)
@@ -1238,7 +1277,10 @@ mod tests {
             "{roots:?}"
         );
         let ratio_ci = (roots[1] - s3.energy.total_hartree) * HARTREE_CM1 / observed_s;
+        // Regression pin (our own output): 1.205. Physics: the two estimates bracket
+        // the observed splitting (the ¹S energies bracket the exact 2¹S, above).
         assert!((ratio_ci - 1.205).abs() < 0.01, "1s2s CI: ratio {ratio_ci}");
+        assert!(ratio_s < 1.0 && ratio_ci > 1.0, "{ratio_s} {ratio_ci}");
 
         // 1s3p in the same way: 625.7 cm⁻¹ against 644.8 cm⁻¹ (NIST ASD 2014, ¹P°
         // less the ³P° centroid), ratio 0.970. (1s3s: 1081.4 against 1628.0,
@@ -1247,7 +1289,12 @@ mod tests {
             &solve_term(2, "1s 3p", PairSpin::Singlet),
             &solve_term(2, "1s 3p", PairSpin::Triplet),
         ) / observed_p_splitting("1s.3p");
+        // Regression pin (our own output): 0.970. Physics: as for 1s2p, the
+        // term-dependent orbitals give ¹P − ³P within 10 % of the observed splitting,
+        // the accuracy published Hartree–Fock term energies reach for 1s2p (0.957,
+        // above); 1s3p has less correlation, not more.
         assert!((ratio_3p - 0.970).abs() < 0.01, "1s3p: ratio {ratio_3p}");
+        assert!((ratio_3p - 1.0).abs() < 0.1, "1s3p: ratio {ratio_3p}");
 
         // The ¹S orbitals are still those of 1s2s.
         assert_eq!(s1.orbital(1, 0).unwrap().nodes(), 0);
@@ -1270,17 +1317,81 @@ mod tests {
     fn magnesium_3s3p_terms_converge() {
         // Mg 1s2.2s2.2p6.3s.3p: closed inner s and p shells of the same l as the
         // open pair (the rotation analysis of `fix_mixing`). Convergence and the
-        // virial theorem (Froese Fischer 1977, §2.8); the splitting is reported,
-        // not checked against a source: ¹P − ³P = 16588 cm⁻¹ here, against about
-        // 13200 cm⁻¹ observed (Mg I 3s3p ¹P° 35051 cm⁻¹, ³P° near 21870 cm⁻¹;
-        // NIST ASD, values from memory), ratio 1.26.
+        // virial theorem (Froese Fischer 1977, §2.8). The splitting: ¹P − ³P =
+        // 16588 cm⁻¹ here, against 13182.8 cm⁻¹ observed (Mg I 3s3p ¹P° 35051.264,
+        // ³P° centroid 21868.4 from J = 0, 1, 2 at 21850.405, 21870.464, 21911.178;
+        // NIST ASD of 2017-10 via tests/data/reference-data/MgI-levels.csv), ratio 1.26.
         let triplet = solve_term(12, "1s2 2s2 2p6 3s 3p", PairSpin::Triplet);
         let singlet = solve_term(12, "1s2 2s2 2p6 3s 3p", PairSpin::Singlet);
         for s in [&triplet, &singlet] {
             assert!((s.energy.virial_ratio() - 2.0).abs() < 1e-6);
         }
+        let observed = 35051.264 - (21850.405 + 3.0 * 21870.464 + 5.0 * 21911.178) / 9.0;
         let split = (singlet.energy.total_hartree - triplet.energy.total_hartree) * HARTREE_CM1;
-        assert!((split / 13_200.0 - 1.26).abs() < 0.05, "split {split} cm⁻¹");
+        // Regression pin (our own output): 1.26. Physics: above the observed value,
+        // as unscaled single-configuration exchange splittings of neutral atoms are
+        // (the reason for the customary scaling of G^k by 0.8–0.9; common practice,
+        // no source).
+        assert!((split / observed - 1.26).abs() < 0.05, "split {split} cm⁻¹");
+        assert!(split > observed, "split {split} cm⁻¹");
+    }
+
+    #[test]
+    fn open_pairs_of_one_l_obey_the_virial_theorem_when_stationary() {
+        // He 1s2s, 1s3s and Mg 3s4s: two open s orbitals. Made stationary in every
+        // direction, E_av obeys the virial theorem −V/T = 2 (Löwdin 1959, J. Mol.
+        // Spectrosc. 3, 46; Froese Fischer 1977, §2.8). Tolerance 10⁻⁶ as for the
+        // other configurations of this module: the solution is converged to
+        // ‖ΔP‖ < 10⁻⁷, and −V/T − 2 is first order in the error of the orbitals.
+        let stationary = ScfOptions {
+            pair_mixing: PairMixing::Stationary,
+            ..ScfOptions::default()
+        };
+        let run = |z: u32, config: &str, options: &ScfOptions| {
+            hartree_fock(
+                z,
+                &config.parse().unwrap(),
+                options,
+                &mut crate::radial::Silent,
+            )
+            .unwrap_or_else(|e| panic!("{config}: {e}"))
+        };
+        //
+        // He 1s3s reaches only 1.99997 (measured): the Davidson steps of its 3s stop
+        // reducing the residual of its equation at 1.6·10⁻⁵ (a limit of this solver,
+        // not of the grid: the same grid gives 10⁻⁹ elsewhere), so it is held to
+        // 10⁻⁴, still thirty times closer than without the stationary angle (2.0035).
+        for (z, config, tolerance) in [
+            (2, "1s 2s", 1e-6),
+            (2, "1s 3s", 1e-4),
+            (12, "1s2 2s2 2p6 3s 4s", 1e-6),
+        ] {
+            let solution = run(z, config, &stationary);
+            let virial = solution.energy.virial_ratio();
+            assert!(
+                (virial - 2.0).abs() < tolerance,
+                "{config}: −V/T = {virial}"
+            );
+            // The default, the inner orbital an eigenfunction in the pair, is not
+            // stationary in the angle: E_av lies above the stationary (lowest in the
+            // angle) value, and the virial ratio is off.
+            let default = run(z, config, &ScfOptions::default());
+            assert!(default.energy.total_hartree > solution.energy.total_hartree);
+            assert!(
+                (default.energy.virial_ratio() - 2.0).abs() > 1e-5,
+                "{config}"
+            );
+        }
+        // He 1s2s: E_av = E(³S part) + G⁰/2, the first part unchanged by the
+        // rotation and never below the ³S Hartree–Fock energy −2.17425 hartree
+        // (Froese Fischer 1977, from memory; variational), and G⁰ ≥ 0. No published
+        // E_av of 1s2s is known to us. Measured: −2.1730513 (stationary), −2.1678763.
+        let he = run(2, "1s 2s", &stationary);
+        assert!(
+            he.energy.total_hartree > -2.17425,
+            "{}",
+            he.energy.total_hartree
+        );
     }
 
     #[test]

@@ -26,6 +26,39 @@ pub struct ScfOptions {
     /// Fraction of the previous orbital kept in each update (0 = none), raised
     /// automatically when the energy rises. Default: 0.
     pub damping: f64,
+    /// How Hartree–Fock fixes the mixing of two orbitals of one l when the inner one
+    /// is not a closed shell (He 1s2s, Mg 3s4s). Default:
+    /// [`PairMixing::InnerEigenfunction`].
+    pub pair_mixing: PairMixing,
+}
+
+/// How Hartree–Fock fixes the mixing (rotation) of two orbitals of one l when the
+/// inner one is not a closed shell, as in He 1s2s or Mg 3s4s.
+///
+/// Rotating such a pair changes E_av. For s·s′, E_av = E(³S-like part) + G⁰/2
+/// with the first part unchanged by the rotation, so making E_av stationary in the
+/// angle makes G⁰ smallest: the orbitals localise, the inner one takes a small
+/// outer lobe of the other sign, and G⁰ falls far below what the singlet–triplet
+/// splitting needs. Measured for He 1s2s: G⁰(1s,2s) = 511 cm⁻¹ stationary,
+/// 2496 cm⁻¹ with the inner orbital an eigenfunction, against 3211 cm⁻¹ from the
+/// observed E(2¹S) − E(2³S) = 2G⁰ (NIST ASD 2014); E_av −2.1730513 against
+/// −2.1678763 hartree.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum PairMixing {
+    /// The inner orbital is an eigenfunction of its own Hartree–Fock operator
+    /// within the pair (its off-diagonal Lagrange multiplier with the outer one is
+    /// zero). Keeps the orbitals 1s-like and 2s-like and the exchange integral
+    /// physical, but E_av is not stationary in the mixing angle, so the virial
+    /// ratio −V/T departs from 2 (He 1s2s 2.0140, 1s3s 2.0035, Mg 3s4s 2.00008).
+    #[default]
+    InnerEigenfunction,
+    /// E_av stationary in the mixing angle (Newton steps on the angle; Froese
+    /// Fischer 1977, §7.4): a true stationary point, −V/T = 2, but with the small
+    /// exchange integral described above. The node count of each orbital is then
+    /// checked on the pair rotated as for [`PairMixing::InnerEigenfunction`]: the
+    /// rotation changes the orbitals, not the space they span.
+    Stationary,
 }
 
 impl Default for ScfOptions {
@@ -36,6 +69,7 @@ impl Default for ScfOptions {
             orbital_tolerance: 1e-7,
             energy_tolerance: 1e-12,
             damping: 0.0,
+            pair_mixing: PairMixing::default(),
         }
     }
 }

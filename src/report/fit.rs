@@ -149,18 +149,21 @@ fn summary(report: &FitReport<'_>) -> String {
         weighting_text(r.weighting)
     );
     text.push_str(&wrap(&head, ""));
+    let counted = |n: usize, word: &str| format!("{n} {word}{}", if n == 1 { "" } else { "s" });
     let _ = match r.convergence {
         Convergence::Converged => writeln!(
             text,
-            "Converged after {} iterations ({} evaluations of the levels).",
-            r.iterations, r.evaluations
+            "Converged after {} ({} of the levels).",
+            counted(r.iterations, "iteration"),
+            counted(r.evaluations, "evaluation")
         ),
         Convergence::StoppedAtLimit => writeln!(
             text,
-            "WARNING: stopped at the evaluation limit ({} evaluations of the levels after {} \
-             iterations) before converging: not a converged fit; the values are the best \
-             found. Allow more with --max-evaluations.",
-            r.evaluations, r.iterations
+            "WARNING: stopped at the evaluation limit ({} of the levels after {}) before \
+             converging: not a converged fit; the values are the best found. Allow more with \
+             --max-evaluations.",
+            counted(r.evaluations, "evaluation"),
+            counted(r.iterations, "iteration")
         ),
         Convergence::NothingToFit => {
             writeln!(

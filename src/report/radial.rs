@@ -171,12 +171,13 @@ pub fn radial_table(report: &RadialReport) -> String {
     ));
     for c in &report.configurations {
         out.push_str(&format!(
-            "\n{}: E_av = {:.9} hartree, −V/T = {:.9}, {} iterations, last change {:.1e}; \
+            "\n{}: E_av = {:.9} hartree, −V/T = {:.9}, {} iteration{}, last change {:.1e}; \
              grid h = {:.6}, r ≤ {:.0} bohr\n",
             c.configuration,
             c.total_energy_hartree,
             c.virial_ratio,
             c.iterations,
+            if c.iterations == 1 { "" } else { "s" },
             c.residual,
             c.grid_step,
             c.grid_r_max_bohr

@@ -26,6 +26,7 @@ use super::StructureError;
 use super::basis::{BasisTerm, Coupler, DeterminantVector, StateCache, weighted_dot};
 use super::orbital::{Determinant, Orbital, SpinOrbitalLayout};
 use super::parameter::{ParameterId, Radial, Scope};
+use super::racah::ConfigurationRacah;
 use crate::angular::{CkTable, six_j, three_j};
 use crate::notation::{Configuration, Parity};
 
@@ -355,12 +356,103 @@ pub(crate) struct BlockMatrices {
     pub j_coefficients: Vec<BTreeMap<ParameterId, CoefficientMatrix>>,
 }
 
+/// How the matrices within a configuration are made.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) enum Route {
+    /// Racah algebra on the subshells' tables ([`super::racah`]); configuration
+    /// interaction from determinants.
+    Racah,
+    /// Everything from the Slater determinants of the whole configuration: the
+    /// reference the tests compare the Racah route with.
+    #[cfg_attr(not(test), allow(dead_code))]
+    Determinants,
+}
+
+/// The Coulomb matrices of the states `terms` (basis indices, all of one (L, 2S)),
+/// projected from their determinants at M_L = L, M_S = S by the Slater–Condon
+/// rules, for the pairs of configurations `keep` accepts: (parameter, matrix over
+/// `terms`).
+#[allow(clippy::too_many_arguments)]
+fn project_on_determinants(
+    coupler: &Coupler,
+    basis: &[BasisTerm],
+    ck: &CkTable,
+    orbitals: &[Orbital],
+    cache: &mut StateCache,
+    (l, two_s): (u32, u32),
+    terms: &[usize],
+    keep: &dyn Fn(usize, usize) -> bool,
+) -> HashMap<ParameterId, DMatrix<f64>> {
+    let mut entries = Vec::new();
+    let mut index: HashMap<Determinant, usize> = HashMap::new();
+    let mut dets: Vec<(Determinant, usize)> = Vec::new();
+    let vectors: Vec<_> = terms
+        .iter()
+        .map(|&t| coupler.state(&basis[t], l as i32, two_s as i32, cache))
+        .collect();
+    for (&t, v) in terms.iter().zip(&vectors) {
+        for (d, _) in v.iter() {
+            index.entry(*d).or_insert_with(|| {
+                dets.push((*d, basis[t].configuration));
+                dets.len() - 1
+            });
+        }
+    }
+    let mut v = DMatrix::zeros(dets.len(), terms.len());
+    // The non-zero coefficients of each determinant: (term column, value).
+    let mut in_terms: Vec<Vec<(usize, f64)>> = vec![Vec::new(); dets.len()];
+    for (col, vector) in vectors.iter().enumerate() {
+        for (d, c) in vector.iter() {
+            v[(index[d], col)] = *c;
+            in_terms[index[d]].push((col, *c));
+        }
+    }
+    let mut images: HashMap<ParameterId, DMatrix<f64>> = HashMap::new();
+    for i in 0..dets.len() {
+        for j in i..dets.len() {
+            let (di, ci) = dets[i];
+            let (dj, cj) = dets[j];
+            if !keep(ci, cj) {
+                continue;
+            }
+            if di.difference_count(&dj) > 4 {
+                continue;
+            }
+            entries.clear();
+            slater_condon(&coupler.layout, ck, &di, &dj, &mut entries);
+            for &(key, c) in &entries {
+                let Some(id) = parameter_of(key, orbitals, ci, cj) else {
+                    continue;
+                };
+                let w = images
+                    .entry(id)
+                    .or_insert_with(|| DMatrix::zeros(dets.len(), terms.len()));
+                // Only the terms that contain the determinant: the others
+                // have an exact zero there.
+                for &(col, x) in &in_terms[j] {
+                    w[(i, col)] += c * x;
+                }
+                if i != j {
+                    for &(col, x) in &in_terms[i] {
+                        w[(j, col)] += c * x;
+                    }
+                }
+            }
+        }
+    }
+    images
+        .into_iter()
+        .map(|(id, w)| (id, v.transpose() * w))
+        .collect()
+}
+
 /// Build the basis and coefficient matrices of one parity block.
 pub(crate) fn build_block(
     parity: Parity,
     configurations: &[Configuration],
     members: &[usize],
     interactions: &HashSet<(usize, usize)>,
+    route: Route,
     progress: &mut dyn FnMut(usize, usize),
 ) -> Result<BlockMatrices, StructureError> {
     // Active orbitals: every orbital of the block's configurations that is not
@@ -407,7 +499,6 @@ pub(crate) fn build_block(
     }
     // ls_matrices[(L,2S)] = (terms, parameter → matrix over those terms).
     let mut ls_matrices: BTreeMap<(u32, u32), LsMatrices> = BTreeMap::new();
-    let mut entries = Vec::new();
     let mut two_js: BTreeSet<u32> = BTreeSet::new();
     for term in &basis {
         let mut j = (2 * term.l).abs_diff(term.two_s);
@@ -418,68 +509,108 @@ pub(crate) fn build_block(
     }
     let steps = groups.len() + two_js.len();
     let mut step = 0;
+    // Configurations of the block that interact with another one.
+    let interacting: HashSet<usize> = members
+        .iter()
+        .copied()
+        .filter(|&c| {
+            members
+                .iter()
+                .any(|&d| d != c && interactions.contains(&(c.min(d), c.max(d))))
+        })
+        .collect();
+    let mut racah: Vec<ConfigurationRacah> = match route {
+        Route::Racah => coupler
+            .configurations
+            .iter()
+            .map(|c| {
+                let open: Vec<(Orbital, u32)> = c
+                    .open
+                    .iter()
+                    .map(|s| (orbitals[s.shell], s.subshell.occupancy))
+                    .collect();
+                ConfigurationRacah::new(&open, &ck)
+            })
+            .collect(),
+        Route::Determinants => Vec::new(),
+    };
+    let mut pushed = Vec::new();
     for (&(l, two_s), terms) in &groups {
         step += 1;
         progress(step, steps);
-        let mut index: HashMap<Determinant, usize> = HashMap::new();
-        let mut dets: Vec<(Determinant, usize)> = Vec::new();
-        let vectors: Vec<_> = terms
-            .iter()
-            .map(|&t| coupler.state(&basis[t], l as i32, two_s as i32, &mut cache))
-            .collect();
-        for (&t, v) in terms.iter().zip(&vectors) {
-            for (d, _) in v.iter() {
-                index.entry(*d).or_insert_with(|| {
-                    dets.push((*d, basis[t].configuration));
-                    dets.len() - 1
-                });
-            }
-        }
-        let mut v = DMatrix::zeros(dets.len(), terms.len());
-        // The non-zero coefficients of each determinant: (term column, value).
-        let mut in_terms: Vec<Vec<(usize, f64)>> = vec![Vec::new(); dets.len()];
-        for (col, vector) in vectors.iter().enumerate() {
-            for (d, c) in vector.iter() {
-                v[(index[d], col)] = *c;
-                in_terms[index[d]].push((col, *c));
-            }
-        }
-        let mut images: HashMap<ParameterId, DMatrix<f64>> = HashMap::new();
-        for i in 0..dets.len() {
-            for j in i..dets.len() {
-                let (di, ci) = dets[i];
-                let (dj, cj) = dets[j];
-                if ci != cj && !interactions.contains(&(ci.min(cj), ci.max(cj))) {
-                    continue;
-                }
-                if di.difference_count(&dj) > 4 {
-                    continue;
-                }
-                entries.clear();
-                slater_condon(&coupler.layout, &ck, &di, &dj, &mut entries);
-                for &(key, c) in &entries {
-                    let Some(id) = parameter_of(key, &orbitals, ci, cj) else {
+        let size = terms.len();
+        let mut matrices: BTreeMap<ParameterId, DMatrix<f64>> = BTreeMap::new();
+        if route == Route::Racah {
+            for x in 0..size {
+                let a = &basis[terms[x]];
+                for y in x..size {
+                    let b = &basis[terms[y]];
+                    if a.local_configuration != b.local_configuration {
                         continue;
-                    };
-                    let w = images
-                        .entry(id)
-                        .or_insert_with(|| DMatrix::zeros(dets.len(), terms.len()));
-                    // Only the terms that contain the determinant: the others
-                    // have an exact zero there.
-                    for &(col, x) in &in_terms[j] {
-                        w[(i, col)] += c * x;
                     }
-                    if i != j {
-                        for &(col, x) in &in_terms[i] {
-                            w[(j, col)] += c * x;
+                    pushed.clear();
+                    racah[a.local_configuration].coulomb(a, b, &mut pushed);
+                    for &(radial, value) in &pushed {
+                        let id = ParameterId {
+                            scope: Scope::Configuration(a.configuration),
+                            radial,
+                        };
+                        let m = matrices
+                            .entry(id)
+                            .or_insert_with(|| DMatrix::zeros(size, size));
+                        m[(x, y)] += value;
+                        if x != y {
+                            m[(y, x)] += value;
                         }
                     }
                 }
             }
         }
-        let mut matrices = BTreeMap::new();
-        for (id, w) in images {
-            matrices.insert(id, v.transpose() * w);
+        // The states whose determinants are needed, and which pairs of
+        // configurations they serve.
+        let projected: Vec<usize> = match route {
+            Route::Determinants => (0..size).collect(),
+            Route::Racah => (0..size)
+                .filter(|&x| interacting.contains(&basis[terms[x]].configuration))
+                .collect(),
+        };
+        let configurations_here: BTreeSet<usize> = projected
+            .iter()
+            .map(|&x| basis[terms[x]].configuration)
+            .collect();
+        let needed = match route {
+            Route::Determinants => !projected.is_empty(),
+            Route::Racah => configurations_here.len() > 1,
+        };
+        if needed {
+            let keep = |ci: usize, cj: usize| {
+                let pair = interactions.contains(&(ci.min(cj), ci.max(cj)));
+                match route {
+                    Route::Determinants => ci == cj || pair,
+                    Route::Racah => ci != cj && pair,
+                }
+            };
+            let subset: Vec<usize> = projected.iter().map(|&x| terms[x]).collect();
+            let images = project_on_determinants(
+                &coupler,
+                &basis,
+                &ck,
+                &orbitals,
+                &mut cache,
+                (l, two_s),
+                &subset,
+                &keep,
+            );
+            for (id, m) in images {
+                let target = matrices
+                    .entry(id)
+                    .or_insert_with(|| DMatrix::zeros(size, size));
+                for (i, &x) in projected.iter().enumerate() {
+                    for (j, &y) in projected.iter().enumerate() {
+                        target[(x, y)] += m[(i, j)];
+                    }
+                }
+            }
         }
         ls_matrices.insert((l, two_s), (terms.clone(), matrices));
     }
@@ -500,19 +631,31 @@ pub(crate) fn build_block(
             }
         }
     }
-    for (terms, matrices) in ls_matrices.values_mut() {
-        for (id, m) in matrices.iter_mut() {
-            if let Scope::Configuration(c) = id.scope {
-                let n_det = coupler
-                    .configurations
-                    .iter()
-                    .find(|x| x.configuration == c)
-                    .map_or(1.0, |x| x.determinant_count);
-                let average = averages.get(id).copied().unwrap_or(0.0) / n_det;
-                for (x, t) in terms.iter().enumerate() {
-                    if basis[*t].configuration == c {
-                        m[(x, x)] -= average;
-                    }
+    // Every state of the configuration moves by the average, also in the (L, S)
+    // groups where the parameter has no element.
+    let mut averages: Vec<(ParameterId, f64)> = averages.into_iter().collect();
+    averages.sort_by_key(|a| a.0);
+    for (id, sum) in averages {
+        let Scope::Configuration(c) = id.scope else {
+            continue;
+        };
+        let n_det = coupler
+            .configurations
+            .iter()
+            .find(|x| x.configuration == c)
+            .map_or(1.0, |x| x.determinant_count);
+        let average = sum / n_det;
+        for (terms, matrices) in ls_matrices.values_mut() {
+            if !terms.iter().any(|&t| basis[t].configuration == c) {
+                continue;
+            }
+            let size = terms.len();
+            let m = matrices
+                .entry(id)
+                .or_insert_with(|| DMatrix::zeros(size, size));
+            for (x, t) in terms.iter().enumerate() {
+                if basis[*t].configuration == c {
+                    m[(x, x)] -= average;
                 }
             }
         }
@@ -562,6 +705,13 @@ pub(crate) fn build_block(
                         .any(|o| o != position && a.shell_terms[o] != b.shell_terms[o])
                         || a.couplings[..position] != b.couplings[..position];
                     if others_differ {
+                        continue;
+                    }
+                    if route == Route::Racah {
+                        let reduced = racah[local].spin_orbit(a, b, position);
+                        if reduced.abs() > ZERO {
+                            spin_orbit.push((t, u, id, reduced));
+                        }
                         continue;
                     }
                     let ml = a.l.min(b.l) as i32;
@@ -974,5 +1124,71 @@ mod sparse_tests {
                 assert_eq!(x.coefficients, y.coefficients);
             }
         }
+    }
+}
+
+#[cfg(test)]
+mod route_tests {
+    use super::Route;
+    use crate::notation::Configuration;
+    use crate::structure::LevelStructure;
+
+    /// Build `labels` by both routes and require the same parameters and the same
+    /// coefficient matrix of every parameter in every J block, to 1e-12 (relative
+    /// to the larger of 1 and the element). The determinant route is the
+    /// Slater–Condon projection (Condon & Shortley 1935, §6⁶); the Racah route
+    /// must reproduce it, not approximate it.
+    fn same_matrices(labels: &[&str], interactions: &[(usize, usize)]) {
+        let configurations: Vec<Configuration> =
+            labels.iter().map(|l| l.parse().unwrap()).collect();
+        let racah =
+            LevelStructure::build_by(&configurations, interactions, Route::Racah, |_| {}).unwrap();
+        let reference =
+            LevelStructure::build_by(&configurations, interactions, Route::Determinants, |_| {})
+                .unwrap();
+        assert_eq!(racah.parameters(), reference.parameters(), "{labels:?}");
+        let mut compared = 0;
+        for (a, b) in racah.blocks().iter().zip(reference.blocks()) {
+            assert_eq!(a.j_blocks.len(), b.j_blocks.len());
+            for (x, y) in a.j_blocks.iter().zip(&b.j_blocks) {
+                assert_eq!(x.states, y.states);
+                let ids =
+                    |j: &super::JBlock| j.coefficients.iter().map(|c| c.0).collect::<Vec<_>>();
+                assert_eq!(ids(x), ids(y), "{labels:?} J = {}/2", x.two_j);
+                for ((p, m), (_, n)) in x.coefficients.iter().zip(&y.coefficients) {
+                    let (m, n) = (m.to_dense(), n.to_dense());
+                    for (u, v) in m.iter().zip(n.iter()) {
+                        assert!(
+                            (u - v).abs() <= 1e-12 * u.abs().max(1.0),
+                            "{labels:?} J = {}/2, {}: {u} vs {v}",
+                            x.two_j,
+                            racah.parameters()[*p].full_name(racah.configurations())
+                        );
+                    }
+                    compared += 1;
+                }
+            }
+        }
+        assert!(compared > 0, "{labels:?}: nothing compared");
+    }
+
+    #[test]
+    fn racah_matrices_equal_the_determinant_matrices() {
+        // One open subshell, with repeated terms of equal seniority (f³).
+        same_matrices(&["3d3"], &[]);
+        same_matrices(&["4f3"], &[]);
+        // Two open subshells: direct and exchange, s, p, d and f partners.
+        same_matrices(&["3d2.4p"], &[]);
+        same_matrices(&["3d4.4s"], &[]);
+        same_matrices(&["4f2.5d"], &[]);
+        // Three open subshells (the chain with a subshell between the pair).
+        same_matrices(&["2p2.3s.3p"], &[]);
+        same_matrices(&["4f.5d.6s"], &[]);
+        // Configuration interaction, direct and exchange type (3d.4s ~ 3d.5s has
+        // R^k(3d4s,3d5s) and R^k(3d4s,5s3d)), with closed subshells open elsewhere.
+        same_matrices(&["3d.4s", "3d.5s"], &[(0, 1)]);
+        same_matrices(&["3d2.4s", "3d.4s2", "3d3"], &[(0, 1), (0, 2), (1, 2)]);
+        same_matrices(&["3s2.3d", "3s.3p2", "3s.3p.4s"], &[(0, 1)]);
+        same_matrices(&["2p5.3s", "2p5.3d", "2p5.4s"], &[(0, 1), (0, 2), (1, 2)]);
     }
 }

@@ -16,10 +16,13 @@
 //! - [`model`] reads and writes the TOML model file of an ion.
 //!
 //! How the matrices are made: subshell terms lⁿ are found in the determinants
-//! (kernel of L₊ and S₊, seniority from the pairing operator), coupled subshell
-//! after subshell with Clebsch–Gordan coefficients into LS states with parent
-//! labels (`3d4.(5D).4s 6D`), and the Hamiltonian is projected on them (see
-//! [`hamiltonian`] for the formulas and sources).
+//! (kernel of L₊ and S₊, seniority from the pairing operator) and coupled
+//! subshell after subshell into LS states with parent labels (`3d4.(5D).4s 6D`).
+//! Within a configuration the Coulomb and spin–orbit matrices come from Racah
+//! algebra: reduced matrix elements of unit tensors tabulated once per lⁿ,
+//! recoupled with 9j symbols (`racah`); configuration interaction is projected
+//! from the determinants of the LS states (see [`hamiltonian`] for the formulas
+//! and sources).
 //!
 //! ```
 //! use termsight::notation::Configuration;
@@ -42,6 +45,7 @@ mod levels;
 pub mod model;
 mod orbital;
 mod parameter;
+mod racah;
 mod shell;
 mod size;
 
@@ -207,6 +211,22 @@ impl LevelStructure {
     pub fn build_with_progress(
         configurations: &[Configuration],
         interactions: &[(usize, usize)],
+        progress: impl FnMut(BuildProgress),
+    ) -> Result<LevelStructure, StructureError> {
+        Self::build_by(
+            configurations,
+            interactions,
+            hamiltonian::Route::Racah,
+            progress,
+        )
+    }
+
+    /// [`Self::build_with_progress`] with the matrices within configurations made
+    /// by `route` (the tests build both and compare them).
+    pub(crate) fn build_by(
+        configurations: &[Configuration],
+        interactions: &[(usize, usize)],
+        route: hamiltonian::Route,
         mut progress: impl FnMut(BuildProgress),
     ) -> Result<LevelStructure, StructureError> {
         let configurations: Vec<Configuration> = configurations
@@ -271,6 +291,7 @@ impl LevelStructure {
                 &configurations,
                 &members,
                 &pairs,
+                route,
                 &mut |steps_done, steps_total| {
                     progress(BuildProgress {
                         blocks_done: done,
