@@ -720,3 +720,39 @@ fn the_help_says_which_rows_are_used() {
         assert!(help.contains(option), "{option}");
     }
 }
+
+#[test]
+fn the_shipped_example_gives_back_the_arc_it_was_made_from() {
+    // examples/argon-arc/lines.csv was made (invented, seeded) at T = 13 000 K and
+    // n_e = 1.0e17 cm⁻³; assigned and diagnosed, T and n_e must come back within 3σ
+    // (a single, fixed draw), and the LTE check must name its gap.
+    let dir = tempfile::tempdir().unwrap();
+    let lines = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("examples/argon-arc/lines.csv");
+    let assigned = dir.path().join("assigned.csv");
+    let out = termsight(&[
+        "assign",
+        lines.to_str().unwrap(),
+        "--species",
+        "Ar",
+        "--species",
+        "H",
+        "--format",
+        "csv",
+        "-o",
+        assigned.to_str().unwrap(),
+    ]);
+    assert!(out.status.success(), "{}", text(&out.stderr));
+    let json = json_of(&assigned, &["--instrument-fwhm-nm", "0.05"]);
+    let ((t, ts), (ne, ns)) = saha(&json);
+    assert!((t - 13_000.0).abs() < 3.0 * ts, "{t} ± {ts}");
+    assert!((ne - 1e17).abs() < 3.0 * ns, "{ne} ± {ns}");
+    let stark = &json["diagnosis"]["stark_density_cm3"];
+    let (n, s) = (
+        stark["value"].as_f64().unwrap(),
+        stark["sigma"].as_f64().unwrap(),
+    );
+    assert!((n - 1e17).abs() < 3.0 * s, "{n} ± {s}");
+    assert_eq!(json["diagnosis"]["widths"].as_array().unwrap().len(), 2);
+    let lte = &json["diagnosis"]["elements"][0]["lte"];
+    assert_eq!(lte["gap_species"], "Ar II", "{lte}");
+}

@@ -66,6 +66,7 @@ pub struct PlasmaOptions {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct StageResult {
     /// The spectrum.
+    #[serde(serialize_with = "crate::plasma::saha::species_name")]
     pub species: Species,
     /// Lines of it.
     pub lines: usize,
@@ -77,8 +78,10 @@ pub struct StageResult {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct PairResult {
     /// The lower stage.
+    #[serde(serialize_with = "crate::plasma::saha::species_name")]
     pub neutral: Species,
     /// The next stage.
+    #[serde(serialize_with = "crate::plasma::saha::species_name")]
     pub ion: Species,
     /// The fit.
     pub saha_boltzmann: Outcome<SahaBoltzmannFit>,

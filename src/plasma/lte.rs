@@ -75,6 +75,7 @@ pub struct LteCheck {
     /// The gap used: lower and upper level energies, cm⁻¹.
     pub gap_cm1: (f64, f64),
     /// The species the gap belongs to, as printed (`Ar I`).
+    #[serde(serialize_with = "crate::plasma::saha::species_name")]
     pub gap_species: crate::notation::Species,
     /// Minimum n_e, cm⁻³.
     pub minimum_cm3: f64,

@@ -165,7 +165,13 @@ mod tests {
         // log U = 1.63). Tolerance: 3 % for the argon values (the tables print three
         // figures) and 8 % for iron (memory of a log table to two decimals, and a
         // different cut: Gray's tables come from older level lists).
+        // Also, from memory: H I 2.00 at 5000 and 10 000 K (the n = 2 levels, 10.2 eV
+        // up, add 6e-5 at 10 000 K) and Na I 2.04 at 5040 K (Gray 2005, Table D.2,
+        // log U = 0.31), to the tables' three figures.
         let cases = [
+            ("H I", 5000.0, 2.00, 0.005),
+            ("H I", 10000.0, 2.00, 0.005),
+            ("Na I", 5040.0, 2.04, 0.03),
             ("Ar I", 5000.0, 1.000, 0.03),
             ("Ar I", 10000.0, 1.000, 0.03),
             ("Ar II", 5000.0, 5.32, 0.03),

@@ -63,12 +63,18 @@ pub fn debye_lowering_cm1(density_cm3: f64, temperature_k: f64) -> f64 {
     joule / ELEMENTARY_CHARGE_C * EV_CM1
 }
 
+/// Serialise a species as its name (`Ar II`), as every output prints it.
+pub fn species_name<S: serde::Serializer>(species: &Species, s: S) -> Result<S::Ok, S::Error> {
+    s.collect_str(species)
+}
+
 /// One assigned line of a plot: what the input gives.
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct LineData {
     /// 1-based data row of the line in the input.
     pub line: usize,
     /// The spectrum.
+    #[serde(serialize_with = "crate::plasma::saha::species_name")]
     pub species: Species,
     /// Upper-level energy E_k, cm⁻¹.
     pub upper_energy_cm1: f64,
@@ -100,6 +106,7 @@ pub struct PlotPoint {
     /// 1-based data row of the line in the input.
     pub line: usize,
     /// The spectrum.
+    #[serde(serialize_with = "crate::plasma::saha::species_name")]
     pub species: Species,
     /// Abscissa, cm⁻¹: E_k (Boltzmann), E_k + χ − Δχ for the ion (Saha–Boltzmann).
     pub x_cm1: f64,
@@ -124,6 +131,7 @@ pub struct Measured {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct BoltzmannFit {
     /// The spectrum.
+    #[serde(serialize_with = "crate::plasma::saha::species_name")]
     pub species: Species,
     /// Excitation temperature, K.
     pub temperature_k: Measured,
@@ -327,8 +335,10 @@ pub enum SahaMode {
 #[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct SahaBoltzmannFit {
     /// The lower stage (`Ar I`).
+    #[serde(serialize_with = "crate::plasma::saha::species_name")]
     pub neutral: Species,
     /// The next stage (`Ar II`).
+    #[serde(serialize_with = "crate::plasma::saha::species_name")]
     pub ion: Species,
     /// What was fitted and what was given.
     pub mode: SahaMode,
