@@ -66,10 +66,31 @@ impl CoefficientMatrix {
 
     /// From elements (row, column, value) in any order, each given once (of an
     /// element given twice one is kept), zeros left out.
-    pub(crate) fn from_elements(size: usize, mut list: Vec<(u32, u32, f64)>) -> CoefficientMatrix {
-        list.sort_unstable_by_key(|&(r, c, _)| (u64::from(r) << 32) | u64::from(c));
-        let mut entries: Vec<(u32, u32, f64)> = Vec::with_capacity(list.len());
+    pub(crate) fn from_elements(size: usize, list: Vec<(u32, u32, f64)>) -> CoefficientMatrix {
+        // Rows by counting (every row index is below `size`), then the few
+        // columns of each row by sorting.
+        let mut starts = vec![0usize; size + 1];
+        for &(r, _, _) in &list {
+            if let Some(s) = starts.get_mut(r as usize + 1) {
+                *s += 1;
+            }
+        }
+        for r in 0..size {
+            starts[r + 1] += starts[r];
+        }
+        let mut next = starts.clone();
+        let mut placed = vec![(0, 0, 0.0); starts[size]];
         for e in list {
+            if let Some(slot) = next.get_mut(e.0 as usize) {
+                placed[*slot] = e;
+                *slot += 1;
+            }
+        }
+        for r in 0..size {
+            placed[starts[r]..starts[r + 1]].sort_unstable_by_key(|e| e.1);
+        }
+        let mut entries: Vec<(u32, u32, f64)> = Vec::with_capacity(placed.len());
+        for e in placed {
             match entries.last_mut() {
                 Some(last) if (last.0, last.1) == (e.0, e.1) => *last = e,
                 _ => entries.push(e),
@@ -1142,6 +1163,25 @@ mod sparse_tests {
         let vector = nalgebra::DVector::from_row_slice(&v);
         let want = vector.dot(&(&dense * &vector));
         assert!((sparse.quadratic_form(&v) - want).abs() < 1e-15);
+    }
+
+    #[test]
+    fn elements_in_any_order_give_the_sorted_matrix() {
+        // The same elements given scrambled, with zeros, read back as the dense
+        // matrix they make (common practice, no source: the order of writing
+        // must not matter).
+        let dense = DMatrix::from_row_slice(3, 3, &[0.0, 4.0, -2.0, 4.0, 0.5, 0.0, -2.0, 0.0, 3.0]);
+        let list = vec![
+            (2, 2, 3.0),
+            (0, 2, -2.0),
+            (1, 1, 0.5),
+            (2, 0, -2.0),
+            (1, 2, 0.0),
+            (1, 0, 4.0),
+            (0, 1, 4.0),
+        ];
+        let sparse = CoefficientMatrix::from_elements(3, list);
+        assert_eq!(sparse, CoefficientMatrix::from_dense(&dense));
     }
 
     #[test]

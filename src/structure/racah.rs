@@ -320,6 +320,30 @@ pub(crate) fn pair_coefficients(
     out
 }
 
+/// [`pair_coefficients`], computed once per process for each argument set
+/// (`ck` must reach max(l_a, l_b)).
+fn shared_pair_coefficients(
+    ck: &CkTable,
+    la: u32,
+    lb: u32,
+    k: u32,
+    exchange: bool,
+) -> Vec<(u32, u32, f64)> {
+    type Key = (u32, u32, u32, bool);
+    type Table = Mutex<BTreeMap<Key, Vec<(u32, u32, f64)>>>;
+    static TABLE: OnceLock<Table> = OnceLock::new();
+    let table = TABLE.get_or_init(|| Mutex::new(BTreeMap::new()));
+    let key = (la, lb, k, exchange);
+    if let Some(found) = table.lock().ok().and_then(|t| t.get(&key).cloned()) {
+        return found;
+    }
+    let x = pair_coefficients(ck, la, lb, k, exchange);
+    if let Ok(mut t) = table.lock() {
+        t.entry(key).or_insert_with(|| x.clone());
+    }
+    x
+}
+
 /// One open subshell of a configuration, as the recoupling sees it.
 struct OpenShellData {
     orbital: Orbital,
@@ -376,12 +400,12 @@ impl ConfigurationRacah {
                 let (la, lb) = (shells[a].orbital.l, shells[b].orbital.l);
                 let direct: PairParts = (1..=2 * la.min(lb))
                     .filter(|k| k.is_multiple_of(2))
-                    .map(|k| (k, pair_coefficients(ck, la, lb, k, false)))
+                    .map(|k| (k, shared_pair_coefficients(ck, la, lb, k, false)))
                     .filter(|(_, x)| !x.is_empty())
                     .collect();
                 let exchange: PairParts = (la.abs_diff(lb)..=la + lb)
                     .filter(|k| (la + lb + k).is_multiple_of(2))
-                    .map(|k| (k, pair_coefficients(ck, la, lb, k, true)))
+                    .map(|k| (k, shared_pair_coefficients(ck, la, lb, k, true)))
                     .filter(|(_, x)| !x.is_empty())
                     .collect();
                 let mut kinds: Vec<(u32, u32)> = direct
