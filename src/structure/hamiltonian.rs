@@ -1,13 +1,19 @@
 //! The Hamiltonian of a level model as Σ_p P_p · C_p: one coefficient matrix per
 //! parameter, per (parity, J) block, in the LS basis.
 //!
-//! - Coulomb and configuration interaction: Slater–Condon rules on the
-//!   determinants with M_L = L, M_S = S of each (L, S), projected on the LS states.
-//!   Coulomb is diagonal in L and S and independent of J, so each (L, S) matrix
-//!   serves every J (Condon & Shortley 1935, §7⁶).
+//! - Coulomb within a configuration: Racah algebra (module `racah`): unit-tensor
+//!   tables of each subshell lⁿ, recoupled along the chain of subshells with 9j
+//!   symbols. Coulomb is diagonal in L and S and independent of J, so each (L, S)
+//!   matrix serves every J (Condon & Shortley 1935, §7⁶).
+//! - Configuration interaction: Slater–Condon rules on the determinants with
+//!   M_L = L, M_S = S of each (L, S), projected on the LS states of the
+//!   interacting configurations only. `Route::Determinants` does the same for the
+//!   Coulomb matrices within configurations: the reference the tests compare the
+//!   Racah route with.
 //! - Spin–orbit: the double-reduced matrix element ⟨γLS‖Σ l_i s_i‖γ'L'S'⟩ of each
-//!   subshell is taken from one component (l_z s_z, diagonal in determinants) by
-//!   the Wigner–Eckart theorem, and ⟨γLSJ|ζ Σ l·s|γ'L'S'J⟩ =
+//!   subshell, from its W^(11) table recoupled with 9j symbols (in the determinant
+//!   route: from one component, l_z s_z, diagonal in determinants, by the
+//!   Wigner–Eckart theorem), and ⟨γLSJ|ζ Σ l·s|γ'L'S'J⟩ =
 //!   ζ (−1)^(L'+S+J) {L S J; S' L' 1} ⟨γLS‖V^(11)‖γ'L'S'⟩ (Edmonds 1957, eq. 7.1.6).
 //! - Configuration average: each configuration's F^k (k > 0) and G^k matrices have
 //!   their trace over the configuration's determinants removed, so that E_av is the
