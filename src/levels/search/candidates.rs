@@ -91,8 +91,8 @@ pub struct Problem {
     lambda_limits: Vec<f64>,
 }
 
-/// Line counts for which [`Problem::lambda_limits`] is tabulated; above, every peak
-/// is judged in full.
+/// Line counts for which [`Problem::lambda_limits`] is tabulated at least (more in a
+/// dense search); above, the probability is computed for each peak.
 const LIMITS_UP_TO: usize = 64;
 
 impl Problem {
@@ -166,7 +166,18 @@ impl Problem {
             .iter()
             .map(|&p| problem.count_points(p, range.0, range.1))
             .sum();
-        problem.lambda_limits = (0..=LIMITS_UP_TO)
+        // Tabulate past the line counts a window 2t holds on average (both parities
+        // over the window, so about twice one parity's), with room for denser parts.
+        let width = (range.1 - range.0).max(f64::MIN_POSITIVE);
+        let mean_count = problem.total_points as f64 * 2.0 * problem.max_tolerance() / width;
+        let up_to = if mean_count.is_finite() {
+            (LIMITS_UP_TO as f64)
+                .max(8.0 * mean_count + 64.0)
+                .min(4096.0) as usize
+        } else {
+            LIMITS_UP_TO
+        };
+        problem.lambda_limits = (0..=up_to)
             .map(|n| lambda_limit(n, problem.total_points, config.max_chance_probability()))
             .collect();
         problem
@@ -176,10 +187,16 @@ impl Problem {
     /// candidate that is reported: false only when even the narrowest spread of
     /// pairs (the smallest u_c of the search) would be too likely by chance.
     pub(crate) fn may_report(&self, lines: usize, rho: f64) -> bool {
+        use super::significance::{cluster_probability, with_look_elsewhere};
         let lambda = 2.0 * self.config.tolerance_sigma() * self.min_uncertainty * rho;
-        self.lambda_limits
-            .get(lines)
-            .is_none_or(|&limit| lambda <= limit)
+        match self.lambda_limits.get(lines) {
+            Some(&limit) => lambda <= limit,
+            // Past the table: the probability itself, at its lowest (span 0).
+            None => {
+                with_look_elsewhere(cluster_probability(lines, lambda, 0.0), self.total_points)
+                    <= self.config.max_chance_probability()
+            }
+        }
     }
 
     /// The largest tolerance k·u_c of any pair, cm⁻¹.
