@@ -410,9 +410,12 @@ Eav = 60000.0
     )
 }
 
+/// A line of `model_lines`: lower configuration, upper configuration, upper level, gf.
+type LineRow = (String, String, String, f64);
+
 /// The `lines --format json` lines of a model file: (lower configuration, upper
 /// configuration, upper level, gf), and the dipole integrals the report names.
-fn model_lines(path: &std::path::Path) -> (Vec<(String, String, String, f64)>, Vec<String>) {
+fn model_lines(path: &std::path::Path) -> (Vec<LineRow>, Vec<String>) {
     let output = termsight(&["lines", path.to_str().unwrap(), "--format", "json"]);
     assert!(
         output.status.success(),

@@ -718,13 +718,16 @@ fn dipole_pair(text: &str, configurations: &[Configuration]) -> Result<(usize, u
     Ok((a.min(b), a.max(b)))
 }
 
+/// The values of a `[dipole]` table: per orbital pair, and per configuration pair.
+type DipoleTable = (Vec<(DipoleIntegral, f64)>, Vec<PairDipole>);
+
 /// The `[dipole]` table: `"P(a,b)" = bohr`, each integral once, each orbital one
 /// of the model's; and `"P(a,b)@c1~c2" = bohr` for one configuration pair.
 fn read_dipole(
     lines: &Lines<'_>,
     table: &DeTable<'_>,
     configurations: &[Configuration],
-) -> Result<(Vec<(DipoleIntegral, f64)>, Vec<PairDipole>), ModelError> {
+) -> Result<DipoleTable, ModelError> {
     let mut out: Vec<(DipoleIntegral, f64)> = Vec::new();
     let mut pairs: Vec<PairDipole> = Vec::new();
     for (key, value) in table.iter() {
