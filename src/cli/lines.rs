@@ -14,7 +14,9 @@ use crate::report::figures::{model_spectrum_from, model_spectrum_svg};
 use crate::report::{LineSelection, LinesReport, lines_csv, lines_json, lines_table};
 use crate::structure::DipoleIntegral;
 use crate::structure::model::{LoadedModel, read_model_with_progress};
-use crate::transitions::{DipoleOperator, DipoleProgress, ModelSpectrum, model_spectrum};
+use crate::transitions::{
+    DipoleOperator, DipoleProgress, ModelSpectrum, model_spectrum_with_pairs,
+};
 
 /// Predict the electric-dipole lines of a level model: every pair of levels of
 /// opposite parity with ΔJ = 0, ±1 (not 0–0), with its wavelength, line strength,
@@ -100,8 +102,9 @@ pub(crate) struct ModelLines {
     pub loaded: LoadedModel,
     /// Its levels and lines.
     pub spectrum: ModelSpectrum,
-    /// The dipole integrals used, with their values.
-    pub dipole: Vec<(DipoleIntegral, f64)>,
+    /// The dipole integrals used, by name (`P(3s,3p)`, `P(3s,3p)@3s.3p~3p2` for one
+    /// configuration pair), with their values.
+    pub dipole: Vec<(String, f64)>,
 }
 
 /// Read `path` and predict its lines; errors name the file.
@@ -135,18 +138,46 @@ pub(crate) fn model_lines(path: &Path) -> Result<ModelLines, CliError> {
              configurations of opposite parity, so add some of the other parity"
         )));
     }
-    let dipole_values = operator
-        .values_from(structure, &loaded.model.dipole)
+    let pairs: Vec<(DipoleIntegral, (usize, usize), f64)> = loaded
+        .model
+        .pair_dipole
+        .iter()
+        .map(|p| (p.integral, p.configurations, p.value))
+        .collect();
+    let (dipole_values, pair_values) = operator
+        .values_with_pairs_from(structure, &loaded.model.dipole, &pairs)
         .map_err(message)?;
     let values = loaded.model.values_for(structure);
     let spectrum =
-        model_spectrum(structure, &operator, &values, &dipole_values).map_err(message)?;
-    let dipole = operator
-        .integrals()
-        .iter()
-        .copied()
-        .zip(dipole_values)
-        .collect();
+        model_spectrum_with_pairs(structure, &operator, &values, &dipole_values, &pair_values)
+            .map_err(message)?;
+    // The plain values that some configuration pair uses, then the pairs' own.
+    let configurations = &loaded.model.configurations;
+    let mut dipole: Vec<(String, f64)> = Vec::new();
+    for (slot, (integral, value)) in operator.integrals().iter().zip(&dipole_values).enumerate() {
+        let own = |u: &crate::transitions::IntegralUse| {
+            pair_values
+                .iter()
+                .any(|p| p.slot == slot && (p.even, p.odd) == (u.even, u.odd))
+        };
+        if operator.all_uses()[slot].iter().any(|u| !own(u)) {
+            dipole.push((integral.to_string(), *value));
+        }
+    }
+    for p in &pair_values {
+        let (a, b) = (p.even.min(p.odd), p.even.max(p.odd));
+        dipole.push((
+            format!(
+                "{}@{}",
+                operator.integrals()[p.slot],
+                crate::structure::scope_name(
+                    crate::structure::Scope::Interaction(a, b),
+                    configurations
+                )
+            ),
+            p.value,
+        ));
+    }
     Ok(ModelLines {
         loaded,
         spectrum,

@@ -12,7 +12,7 @@ use std::collections::BTreeMap;
 use std::fmt::Write as _;
 
 use crate::notation::{Configuration, Species, Subshell};
-use crate::structure::model::{LevelModel, ModelParameter, Vary, write_model};
+use crate::structure::model::{LevelModel, ModelParameter, PairDipole, Vary, write_model};
 use crate::structure::{DipoleIntegral, LevelStructure, Orbital, Radial, Scope};
 
 use super::RadialError;
@@ -29,9 +29,10 @@ use super::integrals::{IntegralKind, RadialIntegral, ScaleFactors, replacement};
 /// one-electron part ⟨nl|h|n'l⟩ that the level model lacks and that, for
 /// Hartree–Fock orbitals, nearly cancels the R^k part (Brillouin's theorem;
 /// Cowan 1981, ch. 13), so the R^k part alone would mix them far too much.
-/// Where several configuration pairs give a dipole integral
-/// between the same two orbitals, the first pair's value is kept (a model holds
-/// one value per orbital pair). Values are rounded to 0.001 cm⁻¹ and dipole
+/// Where several configuration pairs give a dipole integral between the same two
+/// orbitals (Mg 3s²–3s3p and 3s3p–3p² both P(3s,3p)), the first pair's value is
+/// the model's value for the orbital pair, and each other pair keeps its own as a
+/// value for that configuration pair ([`PairDipole`]), so none is dropped. Values are rounded to 0.001 cm⁻¹ and dipole
 /// integrals to 10⁻⁶ bohr, far below what the scaling leaves uncertain.
 pub fn starting_model(
     species: Species,
@@ -87,6 +88,7 @@ pub fn starting_model(
         interactions,
         parameters,
         dipole: dipole_integrals(integrals),
+        pair_dipole: pair_dipole_integrals(integrals),
         model_uncertainty_cm1: None,
     })
 }
@@ -215,6 +217,35 @@ fn dipole_integrals(integrals: &[RadialIntegral]) -> Vec<(DipoleIntegral, f64)> 
     by_pair.into_iter().collect()
 }
 
+/// The dipole integrals of the configuration pairs after the first that give each
+/// orbital pair's integral, in (integral, pair) order.
+fn pair_dipole_integrals(integrals: &[RadialIntegral]) -> Vec<PairDipole> {
+    let mut seen: Vec<DipoleIntegral> = Vec::new();
+    let mut out = Vec::new();
+    for i in integrals {
+        let IntegralKind::Dipole { a, b } = &i.kind else {
+            continue;
+        };
+        let (Ok(a), Ok(b)) = (a.parse::<Orbital>(), b.parse::<Orbital>()) else {
+            continue;
+        };
+        let (Some(pair), Some(other)) = (DipoleIntegral::new(a, b), i.other_configuration) else {
+            continue;
+        };
+        if !seen.contains(&pair) {
+            seen.push(pair);
+            continue;
+        }
+        out.push(PairDipole {
+            integral: pair,
+            configurations: (i.configuration.min(other), i.configuration.max(other)),
+            value: round(i.scaled, 1e6),
+        });
+    }
+    out.sort_by_key(|p| (p.integral, p.configurations));
+    out
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -275,6 +306,20 @@ mod tests {
         assert!((model.parameters[2].value - 0.85 * g1.value).abs() <= 5e-4);
         assert_eq!(model.dipole.len(), 1);
         assert_eq!(model.dipole[0].0.to_string(), "P(3s,3p)");
+        // 3s2–3s.3p gives the plain value, 3s.3p–3p2 its own: both computed ones
+        // are kept (issue: −3.503 and −3.283 bohr), and they differ, the orbitals
+        // being those of different configurations.
+        let computed: Vec<f64> = integrals
+            .iter()
+            .filter(|i| i.name == "P(3s,3p)")
+            .map(|i| i.value)
+            .collect();
+        assert_eq!(computed.len(), 2);
+        assert!((model.dipole[0].1 - computed[0]).abs() <= 5e-7);
+        assert_eq!(model.pair_dipole.len(), 1);
+        assert_eq!(model.pair_dipole[0].configurations, (1, 2));
+        assert!((model.pair_dipole[0].value - computed[1]).abs() <= 5e-7);
+        assert!((computed[0] - computed[1]).abs() > 0.1, "{computed:?}");
 
         let text = model_file(&model, "Hartree–Fock", &scales, &integrals);
         assert!(text.starts_with("# Starting level model of Mg I"));

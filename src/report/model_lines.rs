@@ -7,7 +7,6 @@ use serde::Serialize;
 use super::csv_document::csv_document;
 use super::significant;
 use crate::levels::LevelLabel;
-use crate::structure::DipoleIntegral;
 use crate::transitions::ModelSpectrum;
 use crate::units::{AirFormula, Medium, air};
 
@@ -141,7 +140,7 @@ impl LinesReport {
         species: String,
         model: String,
         spectrum: &ModelSpectrum,
-        dipole: &[(DipoleIntegral, f64)],
+        dipole: &[(String, f64)],
         selection: &LineSelection,
     ) -> LinesReport {
         let mut rows: Vec<LineRow> = spectrum
@@ -221,7 +220,7 @@ impl LinesReport {
             dipole_integrals: dipole
                 .iter()
                 .map(|(i, v)| DipoleValue {
-                    name: i.to_string(),
+                    name: i.clone(),
                     value_bohr: *v,
                 })
                 .collect(),

@@ -48,6 +48,10 @@
 //!   E1 line moves an electron between (`termsight lines` says which it needs).
 //!   Signs follow radial functions positive near the nucleus; only relative signs
 //!   matter, and only where configuration mixing makes two integrals add.
+//!   A key `"P(3s,3p)@3s.3p~3p2" = -3.28` gives the integral for the lines between
+//!   those two configurations only ([`PairDipole`]; orbitals computed for each
+//!   configuration differ a little); the plain key is the value for every other
+//!   pair, and may be left out when every pair that needs it has its own.
 //! - A parameter is a number, or a table with `value`, `vary` (`"free"`, the
 //!   default, or `"fixed"`), `uncertainty` (≥ 0, optional), or `tie` (the name of
 //!   another parameter) with `ratio` (default 1): a tied parameter equals ratio ×
@@ -101,6 +105,18 @@ pub struct ModelParameter {
     pub uncertainty: Option<f64>,
 }
 
+/// A radial dipole integral for the lines between two configurations only, in
+/// place of the model's value for that orbital pair.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PairDipole {
+    /// The integral.
+    pub integral: DipoleIntegral,
+    /// The two configurations (model indices, first < second).
+    pub configurations: (usize, usize),
+    /// ⟨a|r|b⟩, bohr.
+    pub value: f64,
+}
+
 /// The level model of one ion.
 #[derive(Debug, Clone, PartialEq)]
 pub struct LevelModel {
@@ -115,6 +131,9 @@ pub struct LevelModel {
     /// Radial dipole integrals, bohr, in [`DipoleIntegral`] order (for line
     /// strengths; empty when the file has no `[dipole]` table).
     pub dipole: Vec<(DipoleIntegral, f64)>,
+    /// Radial dipole integrals for the lines between two configurations only
+    /// (`"P(3s,3p)@3s.3p~3p2"` in the `[dipole]` table), in key order.
+    pub pair_dipole: Vec<PairDipole>,
     /// Standard uncertainty of the model's level energies, cm⁻¹, when the file
     /// gives one (`model_uncertainty_cm1`).
     pub model_uncertainty_cm1: Option<f64>,
@@ -656,9 +675,9 @@ pub fn parse_model_with_progress(
             parameter.value = tied_value;
         }
     }
-    let dipole = match dipole_table {
+    let (dipole, pair_dipole) = match dipole_table {
         Some(table) => read_dipole(&lines, table, &configurations)?,
-        None => Vec::new(),
+        None => (Vec::new(), Vec::new()),
     };
     Ok(LoadedModel {
         model: LevelModel {
@@ -667,25 +686,62 @@ pub fn parse_model_with_progress(
             interactions,
             parameters,
             dipole,
+            pair_dipole,
             model_uncertainty_cm1,
         },
         structure,
     })
 }
 
+/// The configuration pair of a `[dipole]` key's `@a~b` part: model indices, first
+/// < second, of opposite parity (an E1 line joins them).
+fn dipole_pair(text: &str, configurations: &[Configuration]) -> Result<(usize, usize), String> {
+    let usage = "write the pair as `@first~second`, two configurations of the model, e.g. \"P(3s,3p)@3s2~3s.3p\"";
+    let (first, second) = text.split_once('~').ok_or_else(|| usage.to_string())?;
+    let find = |label: &str| -> Result<usize, String> {
+        let parsed: Configuration = label
+            .trim()
+            .parse()
+            .map_err(|e| format!("'{}': {e}", label.trim()))?;
+        configurations
+            .iter()
+            .position(|c| *c == parsed)
+            .ok_or_else(|| format!("'{}' is not a configuration of the model", label.trim()))
+    };
+    let (a, b) = (find(first)?, find(second)?);
+    if configurations[a].parity() == configurations[b].parity() {
+        return Err(format!(
+            "{} and {} have the same parity: no E1 line joins them",
+            configurations[a], configurations[b]
+        ));
+    }
+    Ok((a.min(b), a.max(b)))
+}
+
+/// The values of a `[dipole]` table: per orbital pair, and per configuration pair.
+type DipoleTable = (Vec<(DipoleIntegral, f64)>, Vec<PairDipole>);
+
 /// The `[dipole]` table: `"P(a,b)" = bohr`, each integral once, each orbital one
-/// of the model's.
+/// of the model's; and `"P(a,b)@c1~c2" = bohr` for one configuration pair.
 fn read_dipole(
     lines: &Lines<'_>,
     table: &DeTable<'_>,
     configurations: &[Configuration],
-) -> Result<Vec<(DipoleIntegral, f64)>, ModelError> {
+) -> Result<DipoleTable, ModelError> {
     let mut out: Vec<(DipoleIntegral, f64)> = Vec::new();
+    let mut pairs: Vec<PairDipole> = Vec::new();
     for (key, value) in table.iter() {
         let name = key.get_ref().as_ref();
         let at = key.span().start;
         let field = format!("dipole.{name}");
-        let integral: DipoleIntegral = name
+        let (integral_text, pair) = match name.split_once('@') {
+            Some((integral, pair)) => (
+                integral,
+                Some(dipole_pair(pair, configurations).map_err(|m| lines.error(at, &field, m))?),
+            ),
+            None => (name, None),
+        };
+        let integral: DipoleIntegral = integral_text
             .parse()
             .map_err(|m: String| lines.error(at, &field, m))?;
         for orbital in [integral.a, integral.b] {
@@ -702,13 +758,32 @@ fn read_dipole(
         }
         let v = number(value.get_ref())
             .ok_or_else(|| lines.error(at, &field, "not a number; give ⟨a|r|b⟩ in bohr"))?;
+        if let Some(pair) = pair {
+            if pairs
+                .iter()
+                .any(|p| p.integral == integral && p.configurations == pair)
+            {
+                return Err(lines.error(
+                    at,
+                    &field,
+                    format!("{integral} for this pair of configurations is given twice"),
+                ));
+            }
+            pairs.push(PairDipole {
+                integral,
+                configurations: pair,
+                value: v,
+            });
+            continue;
+        }
         if out.iter().any(|(i, _)| *i == integral) {
             return Err(lines.error(at, &field, format!("{integral} is given twice")));
         }
         out.push((integral, v));
     }
     out.sort_by_key(|a| a.0);
-    Ok(out)
+    pairs.sort_by_key(|p| (p.integral, p.configurations));
+    Ok((out, pairs))
 }
 
 /// A required string key of a table: its value and the offset of the key.
@@ -958,10 +1033,20 @@ pub fn write_model(model: &LevelModel) -> String {
             write_parameter(&mut out, p);
         }
     }
-    if !model.dipole.is_empty() {
+    if !model.dipole.is_empty() || !model.pair_dipole.is_empty() {
         let _ = writeln!(out, "\n[dipole]");
         for (integral, value) in &model.dipole {
             let _ = writeln!(out, "\"{integral}\" = {}", float(*value));
+        }
+        for p in &model.pair_dipole {
+            let (a, b) = p.configurations;
+            let _ = writeln!(
+                out,
+                "\"{}@{}\" = {}",
+                p.integral,
+                scope_name(Scope::Interaction(a, b), &model.configurations),
+                float(p.value)
+            );
         }
     }
     out
@@ -1028,6 +1113,29 @@ between = ["3s2", "3p2"]
         );
         let e = dipole("\"P(3s,3p)\" = \"long\"");
         assert!(e.contains("not a number"), "{e}");
+        // Per configuration pair (the syntax of the module documentation).
+        let e = dipole("\"P(3s,3p)@3s2~3p2\" = 1.0");
+        assert!(e.contains("same parity"), "{e}");
+        let e = dipole("\"P(3s,3p)@3s2~4s.4p\" = 1.0");
+        assert!(
+            e.contains("'4s.4p' is not a configuration of the model"),
+            "{e}"
+        );
+        let e = dipole("\"P(3s,3p)@3s2\" = 1.0");
+        assert!(e.starts_with("m.toml:25: key 'dipole.P(3s,3p)@3s2'"), "{e}");
+        let text =
+            MG.to_string() + "\n[dipole]\n\"P(3s,3p)\" = -3.5\n\"P(3s,3p)@3p2~3s.3p\" = -3.25\n";
+        let model = parse_model(&text, "mg.toml").unwrap().model;
+        assert_eq!(model.pair_dipole.len(), 1);
+        let pair = model.pair_dipole[0];
+        assert_eq!(pair.value, -3.25);
+        let label = |i: usize| model.configurations[i].to_string();
+        assert_eq!(
+            (label(pair.configurations.0), label(pair.configurations.1)),
+            ("3s.3p".into(), "3p2".into())
+        );
+        let again = parse_model(&write_model(&model), "again.toml").unwrap();
+        assert_eq!(again.model, model);
         let e = dipole("\"P(3s,3p)\" = 1.0\n\"P(3p,3s)\" = 1.0");
         assert!(
             // Either spelling's line: the table's keys are read in sorted order.

@@ -57,10 +57,13 @@ mod predictions;
 pub mod rates;
 mod spectrum;
 
-pub use operator::{DipoleOperator, DipoleProgress, IntegralUse, JPair};
+pub use operator::{DipoleOperator, DipoleProgress, IntegralUse, JPair, PairValue};
 pub use predictions::model_predictions;
 pub use rates::gf_from_ga;
-pub use spectrum::{LabelledLevel, ModelLine, ModelSpectrum, model_spectrum, unique_labels};
+pub use spectrum::{
+    LabelledLevel, ModelLine, ModelSpectrum, model_spectrum, model_spectrum_with_pairs,
+    unique_labels,
+};
 
 pub use crate::structure::DipoleIntegral;
 use crate::structure::StructureError;

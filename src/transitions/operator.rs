@@ -73,12 +73,28 @@ pub struct IntegralUse {
     pub odd: usize,
 }
 
+/// The value of integral `slot` of [`DipoleOperator::integrals`] for the lines
+/// between configurations `even` and `odd` only (model indices).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PairValue {
+    /// Index in [`DipoleOperator::integrals`].
+    pub slot: usize,
+    /// The even configuration.
+    pub even: usize,
+    /// The odd configuration.
+    pub odd: usize,
+    /// ⟨a|r|b⟩, bohr.
+    pub value: f64,
+}
+
 /// The E1 operator between the two parity blocks of a level structure.
 #[derive(Debug, Clone)]
 pub struct DipoleOperator {
     blocks: Option<(usize, usize)>,
     integrals: Vec<DipoleIntegral>,
     uses: Vec<IntegralUse>,
+    /// Per integral, every configuration pair whose lines need it.
+    all_uses: Vec<Vec<IntegralUse>>,
     pairs: Vec<JPair>,
 }
 
@@ -275,6 +291,7 @@ impl DipoleOperator {
                 blocks: None,
                 integrals: Vec::new(),
                 uses: Vec::new(),
+                all_uses: Vec::new(),
                 pairs: Vec::new(),
             });
         };
@@ -357,14 +374,23 @@ impl DipoleOperator {
         // Which integrals act, and between which configurations.
         let mut used: Vec<usize> = Vec::new();
         let mut uses: Vec<IntegralUse> = Vec::new();
+        let mut all_uses: Vec<Vec<IntegralUse>> = Vec::new();
         for (k, matrix) in reduced.iter().enumerate() {
-            if let Some(position) = matrix.iter().position(|x| x.abs() > ZERO) {
+            let mut pairs: Vec<IntegralUse> = Vec::new();
+            for (position, _) in matrix.iter().enumerate().filter(|(_, x)| x.abs() > ZERO) {
                 let (e, o) = (position % matrix.nrows(), position / matrix.nrows());
-                used.push(k);
-                uses.push(IntegralUse {
+                let pair = IntegralUse {
                     even: even_basis[e].configuration,
                     odd: odd_basis[o].configuration,
-                });
+                };
+                if !pairs.contains(&pair) {
+                    pairs.push(pair);
+                }
+            }
+            if let Some(first) = pairs.first() {
+                used.push(k);
+                uses.push(*first);
+                all_uses.push(pairs);
             }
         }
         let integrals: Vec<DipoleIntegral> = used.iter().map(|&k| all_integrals[k]).collect();
@@ -422,6 +448,7 @@ impl DipoleOperator {
             blocks: Some((even, odd)),
             integrals,
             uses,
+            all_uses,
             pairs,
         })
     }
@@ -441,6 +468,62 @@ impl DipoleOperator {
     /// lines need it (for messages).
     pub fn uses(&self) -> &[IntegralUse] {
         &self.uses
+    }
+
+    /// For each integral of [`Self::integrals`], every pair of configurations whose
+    /// lines need it.
+    pub fn all_uses(&self) -> &[Vec<IntegralUse>] {
+        &self.all_uses
+    }
+
+    /// [`Self::values_from`] with values for single configuration pairs too
+    /// (`pairs`: integral, configuration pair in either order, bohr). An integral
+    /// needs its plain value only when some pair that needs it has no value of its
+    /// own (else the plain value is unused and 0 stands for it); values for pairs
+    /// whose lines do not need the integral are left out.
+    pub fn values_with_pairs_from(
+        &self,
+        structure: &LevelStructure,
+        given: &[(DipoleIntegral, f64)],
+        pairs: &[(DipoleIntegral, (usize, usize), f64)],
+    ) -> Result<(Vec<f64>, Vec<PairValue>), TransitionError> {
+        let mut pair_values = Vec::new();
+        for &(integral, (a, b), value) in pairs {
+            let Some(slot) = self.integrals.iter().position(|i| *i == integral) else {
+                continue;
+            };
+            let Some(used) = self.all_uses[slot]
+                .iter()
+                .find(|u| (u.even, u.odd) == (a, b) || (u.even, u.odd) == (b, a))
+            else {
+                continue;
+            };
+            if !value.is_finite() {
+                return Err(TransitionError::NotFinite { integral, value });
+            }
+            pair_values.push(PairValue {
+                slot,
+                even: used.even,
+                odd: used.odd,
+                value,
+            });
+        }
+        let covered = |slot: usize| {
+            self.all_uses[slot].iter().all(|u| {
+                pair_values
+                    .iter()
+                    .any(|p| p.slot == slot && (p.even, p.odd) == (u.even, u.odd))
+            })
+        };
+        let plain: Vec<(DipoleIntegral, f64)> = self
+            .integrals
+            .iter()
+            .enumerate()
+            .filter(|(slot, i)| covered(*slot) && !given.iter().any(|(g, _)| g == *i))
+            .map(|(_, i)| (*i, 0.0))
+            .chain(given.iter().copied())
+            .collect();
+        Ok((self.values_from(structure, &plain)?, pair_values))
     }
 
     /// The coefficient matrices of every (even J, odd J') pair that has any.

@@ -5,7 +5,7 @@ use nalgebra::DMatrix;
 use serde::Serialize;
 
 use super::TransitionError;
-use super::operator::DipoleOperator;
+use super::operator::{DipoleOperator, PairValue};
 use super::rates::{transition_probability, weighted_oscillator_strength};
 use crate::levels::{LevelLabel, SelectionRules, TransitionFlags, e1};
 use crate::notation::Term;
@@ -133,6 +133,20 @@ pub fn model_spectrum(
     values: &[f64],
     dipole: &[f64],
 ) -> Result<ModelSpectrum, TransitionError> {
+    model_spectrum_with_pairs(structure, operator, values, dipole, &[])
+}
+
+/// [`model_spectrum`] with some integrals taking another value between single
+/// configuration pairs ([`DipoleOperator::values_with_pairs_from`]): each
+/// coefficient of an integral belongs to one LS state of each parity, so to one
+/// configuration of each, and takes the value of that pair.
+pub fn model_spectrum_with_pairs(
+    structure: &LevelStructure,
+    operator: &DipoleOperator,
+    values: &[f64],
+    dipole: &[f64],
+    pair_values: &[PairValue],
+) -> Result<ModelSpectrum, TransitionError> {
     if dipole.len() != operator.integrals().len() {
         return Err(TransitionError::DipoleCount {
             expected: operator.integrals().len(),
@@ -170,8 +184,35 @@ pub fn model_spectrum(
             let (even_levels, even_vectors) = members(even, pair.even_j_block);
             let (odd_levels, odd_vectors) = members(odd, pair.odd_j_block);
             let mut operator_matrix = DMatrix::zeros(even_vectors.nrows(), odd_vectors.nrows());
+            // The configuration of each J state of the two blocks.
+            let configurations = |block: usize, j_block: usize| -> Vec<usize> {
+                let b = &structure.blocks()[block];
+                b.j_blocks[j_block]
+                    .states
+                    .iter()
+                    .map(|&t| b.basis[t].configuration)
+                    .collect()
+            };
+            let (even_configs, odd_configs) = if pair_values.is_empty() {
+                (Vec::new(), Vec::new())
+            } else {
+                (
+                    configurations(even, pair.even_j_block),
+                    configurations(odd, pair.odd_j_block),
+                )
+            };
             for (k, matrix) in &pair.coefficients {
                 operator_matrix += matrix * dipole[*k];
+                for p in pair_values.iter().filter(|p| p.slot == *k) {
+                    let change = p.value - dipole[*k];
+                    for (i, &ce) in even_configs.iter().enumerate() {
+                        for (j, &co) in odd_configs.iter().enumerate() {
+                            if (ce, co) == (p.even, p.odd) {
+                                operator_matrix[(i, j)] += change * matrix[(i, j)];
+                            }
+                        }
+                    }
+                }
             }
             let amplitudes = even_vectors.transpose() * operator_matrix * odd_vectors;
             for (a, &e) in even_levels.iter().enumerate() {
