@@ -49,6 +49,25 @@ const WRAPPED_ROWS: usize = 5000;
 /// Where the column of predicted strengths goes: after the upper level.
 const STRENGTH_COLUMN: usize = 6;
 
+/// Header of the column of observed over predicted intensity.
+const RATIO_HEADER: &str = "I obs/\npred";
+
+/// Append the observed over predicted intensity of a candidate (on its species'
+/// fitted scale; two significant digits), `–` when the prediction has no transition
+/// probability (ranked by position only), nothing when the line has no intensity or
+/// the species no scale.
+fn push_ratio(out: &mut Vec<u8>, evidence: Option<&crate::assign::CandidateEvidence>) {
+    let Some(evidence) = evidence else { return };
+    match (
+        evidence.observed_to_predicted_intensity,
+        evidence.predicted_relative_intensity,
+    ) {
+        (Some(ratio), _) => push_significant(out, ratio, 2, false),
+        (None, None) => out.extend_from_slice("–".as_bytes()),
+        (None, Some(_)) => {}
+    }
+}
+
 /// The cells of one row: their texts one after the other, and where each ends.
 #[derive(Default)]
 struct Cells {
@@ -95,6 +114,9 @@ struct Layout<'a> {
     strengths: bool,
     /// A column of published gA values (compiled spectra).
     published: bool,
+    /// The intensity-aware assignment's evidence: the species verdict under the
+    /// species and a column of observed over predicted intensity.
+    evidence: bool,
     /// Shortened labels of the levels of each predicted line, made when first shown.
     labels: Vec<OnceLock<(String, String)>>,
 }
@@ -115,9 +137,12 @@ impl<'a> Layout<'a> {
             "Δσ\ncm⁻¹".to_string(),
             "Δσ/u".to_string(),
             "P\nchance".to_string(),
-            "alt".to_string(),
-            "flags".to_string(),
         ];
+        if self.evidence {
+            header.push(RATIO_HEADER.to_string());
+        }
+        header.push("alt".to_string());
+        header.push("flags".to_string());
         if self.published {
             header.insert(STRENGTH_COLUMN, "gA\ns⁻¹".to_string());
         }
@@ -128,7 +153,8 @@ impl<'a> Layout<'a> {
     }
 
     fn right_aligned(&self, column: usize) -> bool {
-        let extra = usize::from(self.strengths) + usize::from(self.published);
+        let extra =
+            usize::from(self.strengths) + usize::from(self.published) + usize::from(self.evidence);
         matches!(column, 0..=2) || (6..10 + extra).contains(&column)
     }
 
@@ -194,6 +220,9 @@ impl<'a> Layout<'a> {
             if self.published {
                 cells.end();
             }
+            if self.evidence {
+                cells.end();
+            }
             flags(cells);
             return;
         };
@@ -204,7 +233,14 @@ impl<'a> Layout<'a> {
             with_unit(cells);
         }
         cells.end();
-        cells.push(&c.lower.species);
+        cells.text.extend_from_slice(c.lower.species.as_bytes());
+        if let Some(evidence) = &c.candidate.evidence {
+            cells.text.push(b'\n');
+            cells
+                .text
+                .extend_from_slice(evidence.species_verdict.name().as_bytes());
+        }
+        cells.end();
         let (lower, upper) = self.labels[c.candidate.prediction].get_or_init(|| {
             let levels = self.rendered.report.predictions.levels();
             match (levels.get(c.line.lower), levels.get(c.line.upper)) {
@@ -238,6 +274,10 @@ impl<'a> Layout<'a> {
         cells.end();
         push_significant(&mut cells.text, c.candidate.chance_probability, 2, false);
         cells.end();
+        if self.evidence {
+            push_ratio(&mut cells.text, c.candidate.evidence.as_ref());
+            cells.end();
+        }
         if self.options.all && !first {
             cells.text.push(b'#');
             push_integer(&mut cells.text, r.rank.unwrap_or(0));
@@ -361,12 +401,22 @@ impl<'a> Layout<'a> {
             });
         }
         style_columns(&mut table, |c| self.right_aligned(c));
-        // Level labels are short lines that read badly when split; other columns
-        // give way first.
-        for column in [4, 5] {
+        // Positions, numbers, level labels and flags read badly when split: every
+        // column keeps its content's width (the flags their longest word), so a
+        // table that does not fit keeps its natural widths rather than break a
+        // number across lines.
+        let widths = self.widths();
+        let flags = widths.len().saturating_sub(1);
+        for column in 0..flags {
             if let Some(c) = table.column_mut(column) {
                 c.set_constraint(ColumnConstraint::ContentWidth);
             }
+        }
+        if let (Some(c), Some(&w)) = (table.column_mut(flags), widths.get(flags)) {
+            let w = u16::try_from(w).unwrap_or(u16::MAX);
+            c.set_constraint(ColumnConstraint::LowerBoundary(comfy_table::Width::Fixed(
+                w,
+            )));
         }
         let mut text = table.trim_fmt();
         text.push('\n');
@@ -412,6 +462,7 @@ impl<'a> Layout<'a> {
             any_line(&|l| l.relative_strength.is_some() && l.transition_probability.is_none());
         let published = any_line(&|l| l.transition_probability.is_some());
         Layout {
+            evidence: report.evidence.is_some(),
             rendered: Rendered::new(report),
             options: *options,
             common_unit,
