@@ -49,22 +49,14 @@ const WRAPPED_ROWS: usize = 5000;
 /// Where the column of predicted strengths goes: after the upper level.
 const STRENGTH_COLUMN: usize = 6;
 
-/// Header of the column of observed over predicted intensity.
-const RATIO_HEADER: &str = "I obs/\npred";
-
-/// Append the observed over predicted intensity of a candidate (on its species'
-/// fitted scale; two significant digits), `–` when the prediction has no transition
-/// probability (ranked by position only), nothing when the line has no intensity or
-/// the species no scale.
+/// Append, on a line of its own below the gA (or model gf) of a candidate, its
+/// observed over predicted intensity on its species' fitted scale, as `×0.21` (two
+/// significant digits); nothing when the line has no intensity or the species no
+/// scale (and in the position-only ranking).
 fn push_ratio(out: &mut Vec<u8>, evidence: Option<&crate::assign::CandidateEvidence>) {
-    let Some(evidence) = evidence else { return };
-    match (
-        evidence.observed_to_predicted_intensity,
-        evidence.predicted_relative_intensity,
-    ) {
-        (Some(ratio), _) => push_significant(out, ratio, 2, false),
-        (None, None) => out.extend_from_slice("–".as_bytes()),
-        (None, Some(_)) => {}
+    if let Some(ratio) = evidence.and_then(|e| e.observed_to_predicted_intensity) {
+        out.extend_from_slice("\n×".as_bytes());
+        push_significant(out, ratio, 2, false);
     }
 }
 
@@ -114,9 +106,8 @@ struct Layout<'a> {
     strengths: bool,
     /// A column of published gA values (compiled spectra).
     published: bool,
-    /// The intensity-aware assignment's evidence: the species verdict under the
-    /// species and a column of observed over predicted intensity.
-    evidence: bool,
+    /// Widest configuration on one line of a label cell (broken after a `.`).
+    label_width: usize,
     /// Shortened labels of the levels of each predicted line, made when first shown.
     labels: Vec<OnceLock<(String, String)>>,
 }
@@ -137,12 +128,9 @@ impl<'a> Layout<'a> {
             "Δσ\ncm⁻¹".to_string(),
             "Δσ/u".to_string(),
             "P\nchance".to_string(),
+            "alt".to_string(),
+            "flags".to_string(),
         ];
-        if self.evidence {
-            header.push(RATIO_HEADER.to_string());
-        }
-        header.push("alt".to_string());
-        header.push("flags".to_string());
         if self.published {
             header.insert(STRENGTH_COLUMN, "gA\ns⁻¹".to_string());
         }
@@ -153,8 +141,7 @@ impl<'a> Layout<'a> {
     }
 
     fn right_aligned(&self, column: usize) -> bool {
-        let extra =
-            usize::from(self.strengths) + usize::from(self.published) + usize::from(self.evidence);
+        let extra = usize::from(self.strengths) + usize::from(self.published);
         matches!(column, 0..=2) || (6..10 + extra).contains(&column)
     }
 
@@ -220,9 +207,6 @@ impl<'a> Layout<'a> {
             if self.published {
                 cells.end();
             }
-            if self.evidence {
-                cells.end();
-            }
             flags(cells);
             return;
         };
@@ -244,7 +228,9 @@ impl<'a> Layout<'a> {
         let (lower, upper) = self.labels[c.candidate.prediction].get_or_init(|| {
             let levels = self.rendered.report.predictions.levels();
             match (levels.get(c.line.lower), levels.get(c.line.upper)) {
-                (Some(lower), Some(upper)) => shortened(&lower.label, &upper.label),
+                (Some(lower), Some(upper)) => {
+                    shortened(&lower.label, &upper.label, self.label_width)
+                }
                 _ => (String::new(), String::new()),
             }
         });
@@ -258,6 +244,7 @@ impl<'a> Layout<'a> {
             {
                 push_significant(&mut cells.text, gf, 2, false);
             }
+            push_ratio(&mut cells.text, c.candidate.evidence.as_ref());
             cells.end();
         }
         if self.published {
@@ -265,6 +252,7 @@ impl<'a> Layout<'a> {
                 cells
                     .text
                     .extend_from_slice(format!("{:.1e}", probability.ga_s1()).as_bytes());
+                push_ratio(&mut cells.text, c.candidate.evidence.as_ref());
             }
             cells.end();
         }
@@ -274,10 +262,6 @@ impl<'a> Layout<'a> {
         cells.end();
         push_significant(&mut cells.text, c.candidate.chance_probability, 2, false);
         cells.end();
-        if self.evidence {
-            push_ratio(&mut cells.text, c.candidate.evidence.as_ref());
-            cells.end();
-        }
         if self.options.all && !first {
             cells.text.push(b'#');
             push_integer(&mut cells.text, r.rank.unwrap_or(0));
@@ -401,22 +385,12 @@ impl<'a> Layout<'a> {
             });
         }
         style_columns(&mut table, |c| self.right_aligned(c));
-        // Positions, numbers, level labels and flags read badly when split: every
-        // column keeps its content's width (the flags their longest word), so a
-        // table that does not fit keeps its natural widths rather than break a
-        // number across lines.
-        let widths = self.widths();
-        let flags = widths.len().saturating_sub(1);
-        for column in 0..flags {
+        // Level labels are short lines that read badly when split; other columns
+        // give way first.
+        for column in [4, 5] {
             if let Some(c) = table.column_mut(column) {
                 c.set_constraint(ColumnConstraint::ContentWidth);
             }
-        }
-        if let (Some(c), Some(&w)) = (table.column_mut(flags), widths.get(flags)) {
-            let w = u16::try_from(w).unwrap_or(u16::MAX);
-            c.set_constraint(ColumnConstraint::LowerBoundary(comfy_table::Width::Fixed(
-                w,
-            )));
         }
         let mut text = table.trim_fmt();
         text.push('\n');
@@ -425,7 +399,7 @@ impl<'a> Layout<'a> {
 }
 
 impl<'a> Layout<'a> {
-    fn new(report: &'a AssignReport<'a>, options: &TableOptions) -> Layout<'a> {
+    fn new(report: &'a AssignReport<'a>, options: &TableOptions, label_width: usize) -> Layout<'a> {
         let lines = &report.list.lines;
         let describe = |given: &GivenPosition| match given {
             GivenPosition::Wavelength { unit, medium, .. } => format!("{medium} λ, {unit}"),
@@ -462,7 +436,7 @@ impl<'a> Layout<'a> {
             any_line(&|l| l.relative_strength.is_some() && l.transition_probability.is_none());
         let published = any_line(&|l| l.transition_probability.is_some());
         Layout {
-            evidence: report.evidence.is_some(),
+            label_width,
             rendered: Rendered::new(report),
             options: *options,
             common_unit,
@@ -482,7 +456,7 @@ pub(super) fn by_both_writers(
     report: &AssignReport<'_>,
     options: &TableOptions,
 ) -> (String, String) {
-    let layout = Layout::new(report, options);
+    let layout = Layout::new(report, options, LABEL_WIDTH);
     let mut ours = Vec::new();
     let _ = layout.write(&mut ours);
     let ours = String::from_utf8(ours).unwrap_or_default();
@@ -511,7 +485,7 @@ pub fn write_assign_table<W: Write + ?Sized>(
     options: &TableOptions,
     out: &mut W,
 ) -> io::Result<()> {
-    let layout = Layout::new(report, options);
+    let mut layout = Layout::new(report, options, LABEL_WIDTH);
     let mut text = String::new();
     for line in report.description() {
         text.push_str(&wrap(&line, usize::from(options.width).max(40)));
@@ -528,10 +502,20 @@ pub fn write_assign_table<W: Write + ?Sized>(
         report.assignments.len()
     };
     if shown <= WRAPPED_ROWS {
-        let widths = layout.widths();
-        let natural = widths.iter().sum::<usize>() + 2 * widths.len().saturating_sub(1);
-        if natural > usize::from(options.width) {
-            return out.write_all(layout.wrapped().as_bytes());
+        // Too wide: first break the configurations after more of their dots
+        // (labels grow a line, numbers stay whole), then let comfy-table wrap.
+        let mut label_width = LABEL_WIDTH;
+        loop {
+            let widths = layout.widths();
+            let natural = widths.iter().sum::<usize>() + 2 * widths.len().saturating_sub(1);
+            if natural <= usize::from(options.width) {
+                break;
+            }
+            if label_width <= NARROWEST_LABEL_WIDTH {
+                return out.write_all(layout.wrapped().as_bytes());
+            }
+            label_width -= 1;
+            layout = Layout::new(report, options, label_width);
         }
     }
     layout.write(out)
@@ -616,7 +600,7 @@ fn push_deviation(out: &mut Vec<u8>, deviation_cm1: f64) {
 
 /// The two labels on two lines each (configuration; term and J), without the
 /// subshells that are closed in both (kept when nothing else would remain).
-fn shortened(lower: &LevelLabel, upper: &LevelLabel) -> (String, String) {
+fn shortened(lower: &LevelLabel, upper: &LevelLabel, width: usize) -> (String, String) {
     let closed = |c: &Configuration| -> Vec<(u32, u32)> {
         c.subshells()
             .filter(|s| s.is_closed())
@@ -644,7 +628,7 @@ fn shortened(lower: &LevelLabel, upper: &LevelLabel) -> (String, String) {
         };
         format!(
             "{}\n{} {}",
-            break_at_dots(&configuration.to_string(), LABEL_WIDTH),
+            break_at_dots(&configuration.to_string(), width),
             label.term,
             label.j
         )
@@ -655,6 +639,10 @@ fn shortened(lower: &LevelLabel, upper: &LevelLabel) -> (String, String) {
 /// Widest configuration printed on one line of the table; longer ones are broken
 /// after a `.` (17 keeps the pair-coupled Ne I and Ar I labels on one line).
 const LABEL_WIDTH: usize = 17;
+
+/// Narrowest the configurations are broken to before a table too wide for the
+/// terminal has its cells wrapped (a pair-coupled core `(2P°<3/2>).` is 11).
+const NARROWEST_LABEL_WIDTH: usize = 11;
 
 /// `text` broken into lines of at most `width` characters after `.` separators (a
 /// longer segment stays whole).
