@@ -141,3 +141,93 @@ fn the_tubes_species_win_and_are_present() {
     assert!(blends < 15, "{blends} blends");
     assert!(text.contains("# Species (present / absent / undecided"));
 }
+
+// The He I lines of the ASD 2014 export with an observed wavelength and their
+// printed intensities (tests/data/HeI-lines-asd2014.csv, a copy of
+// ../shared/reference-data/HeI-lines.csv): the intensity-aware assignment must give
+// a Boltzmann excitation temperature for He I (finite, positive, with a standard
+// uncertainty) and keep the rank-1 assignments of the position-only check
+// (tests/assign_reference.rs) right: configurations and terms as the export gives
+// them, J of the strongest component of an unresolved group.
+//
+// What the temperature means: the export's intensities are "as printed, flags
+// included" and "source-specific and not comparable between spectra"
+// (reference-data/export-notes.md): relative intensities on the scale of the
+// observations ASD took them from (estimates on a scale of its own, not calibrated
+// radiances; `*` marks an intensity shared by unresolved components). The fitted
+// T_exc describes that scale, the excitation of the discharge those intensities were
+// estimated in as seen through the estimates, not a temperature measured here; the
+// check is that the plot gives one, not its value.
+#[test]
+fn published_he_i_intensities_give_a_temperature_and_keep_the_assignments() {
+    use termsight::assign::{EvidenceConfig, LineIntensity, MatchConfig, assign_with_evidence};
+
+    use crate::assign_reference::{
+        Component, assert_rank_one_is_the_published_classification, helium_measured_list,
+        helium_printed_intensities,
+    };
+    let mut list = helium_measured_list();
+    let printed = helium_printed_intensities();
+    for line in &mut list.lines {
+        let termsight::linelist::GivenPosition::Wavelength { value, .. } = line.given else {
+            unreachable!("the list is of wavelengths")
+        };
+        let (_, intensity) = printed
+            .iter()
+            .find(|(w, _)| w.parse::<f64>().unwrap() == value)
+            .unwrap();
+        // The number without the ASD flag characters (`*`, `d`, ...).
+        let digits: String = intensity
+            .chars()
+            .filter(|c| c.is_ascii_digit() || *c == '.')
+            .collect();
+        line.intensity = digits.parse().ok();
+    }
+    // Intensity 0 (printed for the faintest lines, 4 of the 36) has no logarithm:
+    // those lines are matched by position alone.
+    let intensities: Vec<Option<LineIntensity>> = list
+        .lines
+        .iter()
+        .map(|l| l.intensity.and_then(|i| LineIntensity::new(i, None)))
+        .collect();
+    assert_eq!(intensities.iter().flatten().count(), 32);
+    // The compiled He I spectrum, with its published transition probabilities.
+    let predictions =
+        termsight::levels::compiled_predictions(&[termsight::levels::embedded_table(
+            "He I".parse().unwrap(),
+        )
+        .unwrap()])
+        .unwrap();
+    // k = 4 as in the position-only check (the 3935.912 Å line lies 3.3 u off).
+    let config = MatchConfig::default().with_tolerance_sigma(4.0).unwrap();
+    let result = assign_with_evidence(
+        &list.lines,
+        &intensities,
+        &predictions,
+        &config,
+        &EvidenceConfig::default(),
+        &mut |_| {},
+    );
+    let helium = &result.species[0];
+    assert_eq!(helium.species.to_string(), "He I");
+    let sigma = helium
+        .temperature_sigma_k
+        .unwrap_or_else(|| panic!("no Boltzmann plot: {:?}", helium.temperature_note));
+    eprintln!(
+        "He I from the ASD 2014 intensities: T_exc = {:.0} ± {:.0} K, {} points",
+        helium.temperature_k,
+        sigma,
+        helium.boltzmann.as_ref().map_or(0, |b| b.used_points())
+    );
+    assert!(helium.temperature_k.is_finite() && helium.temperature_k > 0.0);
+    assert!(sigma.is_finite() && sigma > 0.0 && sigma < helium.temperature_k);
+    // Rank 1 of an unresolved group is now its strongest component (by the
+    // published gA), as the intensity-aware ranking means it to be, where the
+    // position-only check takes the nearest.
+    assert_rank_one_is_the_published_classification(
+        &list,
+        &predictions,
+        &result.assignments,
+        Component::Strongest,
+    );
+}

@@ -15,12 +15,16 @@ struct AsdLine {
     /// The wavelength column (Å, air): observed when `observed`, else Ritz.
     wavelength: String,
     observed: bool,
+    /// The intensity column as printed (ASD codes such as `*` for a blend kept).
+    intensity: String,
     lower: LevelLabel,
     upper: LevelLabel,
     /// `ritz_as_printed` of the source note (Å, air).
     ritz: f64,
     /// `type` of the source note: empty for E1.
     kind: String,
+    /// g_k·A_ki from `Aki_s-1` of the source note and the upper J, s⁻¹.
+    ga: f64,
 }
 
 fn note_field<'a>(note: &'a str, key: &str) -> Option<&'a str> {
@@ -42,6 +46,7 @@ fn helium_lines() -> Vec<AsdLine> {
             AsdLine {
                 wavelength: row[0].to_string(),
                 observed: note.contains("wl=observed"),
+                intensity: row[3].to_string(),
                 lower: LevelLabel::from_fields(&row[4], &row[5], &row[6]).unwrap(),
                 upper: LevelLabel::from_fields(&row[7], &row[8], &row[9]).unwrap(),
                 ritz: note_field(note, "ritz_as_printed")
@@ -49,6 +54,11 @@ fn helium_lines() -> Vec<AsdLine> {
                     .parse()
                     .unwrap(),
                 kind: note_field(note, "type").unwrap_or("").to_string(),
+                ga: {
+                    let upper = LevelLabel::from_fields(&row[7], &row[8], &row[9]).unwrap();
+                    let a: f64 = note_field(note, "Aki_s-1").unwrap().parse().unwrap();
+                    f64::from(upper.j.twice + 1) * a
+                },
             }
         })
         .collect()
@@ -64,6 +74,18 @@ pub(crate) fn helium_predictions() -> Predictions {
         .find(|t| t.species == "He I")
         .unwrap();
     predict_from_table(&table.load().unwrap()).unwrap()
+}
+
+/// The intensity printed with each distinct observed wavelength, as (Å in air as
+/// printed, intensity as printed).
+pub(crate) fn helium_printed_intensities() -> Vec<(String, String)> {
+    let mut out: Vec<(String, String)> = Vec::new();
+    for line in helium_lines().into_iter().filter(|l| l.observed) {
+        if !out.iter().any(|(w, _)| *w == line.wavelength) {
+            out.push((line.wavelength, line.intensity));
+        }
+    }
+    out
 }
 
 /// Standard uncertainty from the printed digits: one unit in the last decimal, but
@@ -168,22 +190,29 @@ fn ritz_air_wavelengths_of_the_helium_export_are_reproduced() {
     assert_eq!(checked, 254); // rows of the export
 }
 
-#[test]
-fn observed_helium_lines_are_assigned_at_rank_one_to_the_published_classification() {
-    // The 84 rows of the ASD 2014 He I export with an observed wavelength share 36
-    // distinct observed wavelengths (unresolved fine-structure components of one
-    // multiplet share one observed value). Each must be assigned at rank 1 to the
-    // configurations and terms the export gives, and to its J values too where the
-    // export's Ritz value of that row is the nearest of the row's group.
-    //
-    // k = 4: the 3935.912 Å line (1s2p 1P°1 – 1s8s 1S0) lies 0.033 Å from its own
-    // Ritz value in the export, 3.3 times the 0.01 Å floor of the uncertainty; at
-    // k = 3 it is, rightly, unassigned (checked below).
-    let list = helium_measured_list();
-    let predictions = helium_predictions();
-    let config = MatchConfig::default().with_tolerance_sigma(4.0).unwrap();
-    let result = assign_lines(&list.lines, &predictions, &config);
-    let rows = records(&list, &predictions, &result);
+/// Which component of an unresolved group of the export rank 1 must be.
+#[derive(Clone, Copy, PartialEq)]
+pub(crate) enum Component {
+    /// The one whose Ritz value is nearest the observed wavelength (by position).
+    Nearest,
+    /// The one with the largest published g_k·A_ki (by intensity: the components
+    /// of one multiplet share an upper configuration and term, so at any
+    /// excitation temperature their intensities go as g_k·A_ki).
+    Strongest,
+}
+
+/// Each of the 36 distinct observed wavelengths of the ASD 2014 He I export must be
+/// assigned at rank 1 to the configurations and terms the export gives, and to the
+/// J values of one row of it, chosen by `component` (the 84 rows with an observed
+/// wavelength share 36 values: unresolved fine-structure components of one
+/// multiplet share one observed value).
+pub(crate) fn assert_rank_one_is_the_published_classification(
+    list: &LineList,
+    predictions: &Predictions,
+    assignments: &[termsight::assign::LineAssignment],
+    component: Component,
+) {
+    let rows = records(list, predictions, assignments);
     let asd = helium_lines();
     let observed_rows: Vec<&AsdLine> = asd.iter().filter(|l| l.observed).collect();
     assert_eq!(observed_rows.len(), 84);
@@ -221,14 +250,15 @@ fn observed_helium_lines_are_assigned_at_rank_one_to_the_published_classificatio
             .filter(|l| l.wavelength == row.wavelength)
             .collect();
         let observed: f64 = row.wavelength.parse().unwrap();
-        let nearest = group
-            .iter()
-            .min_by(|a, b| {
+        let nearest = match component {
+            Component::Nearest => group.iter().min_by(|a, b| {
                 (a.ritz - observed)
                     .abs()
                     .total_cmp(&(b.ritz - observed).abs())
-            })
-            .unwrap();
+            }),
+            Component::Strongest => group.iter().max_by(|a, b| a.ga.total_cmp(&b.ga)),
+        }
+        .unwrap();
         if std::ptr::eq(**nearest, *row) {
             assert_eq!(
                 (c.lower.j, c.upper.j),
@@ -240,6 +270,29 @@ fn observed_helium_lines_are_assigned_at_rank_one_to_the_published_classificatio
         }
     }
     assert_eq!(j_checked, distinct.len());
+}
+
+#[test]
+fn observed_helium_lines_are_assigned_at_rank_one_to_the_published_classification() {
+    // The 84 rows of the ASD 2014 He I export with an observed wavelength share 36
+    // distinct observed wavelengths (unresolved fine-structure components of one
+    // multiplet share one observed value). Each must be assigned at rank 1 to the
+    // configurations and terms the export gives, and to its J values too where the
+    // export's Ritz value of that row is the nearest of the row's group.
+    //
+    // k = 4: the 3935.912 Å line (1s2p 1P°1 – 1s8s 1S0) lies 0.033 Å from its own
+    // Ritz value in the export, 3.3 times the 0.01 Å floor of the uncertainty; at
+    // k = 3 it is, rightly, unassigned (checked below).
+    let list = helium_measured_list();
+    let predictions = helium_predictions();
+    let config = MatchConfig::default().with_tolerance_sigma(4.0).unwrap();
+    let result = assign_lines(&list.lines, &predictions, &config);
+    assert_rank_one_is_the_published_classification(
+        &list,
+        &predictions,
+        &result,
+        Component::Nearest,
+    );
 
     // At the default k = 3 the 3935.912 Å line is unassigned, and only it.
     let strict = assign_lines(&list.lines, &predictions, &MatchConfig::default());

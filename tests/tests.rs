@@ -3,8 +3,10 @@
 //! values beside each check.
 
 mod angular_tables;
+mod assign_chance;
 mod assign_cli;
 mod assign_intensity;
+mod assign_plasma;
 mod assign_reference;
 mod browser;
 mod compiled_spectra;

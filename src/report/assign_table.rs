@@ -49,6 +49,17 @@ const WRAPPED_ROWS: usize = 5000;
 /// Where the column of predicted strengths goes: after the upper level.
 const STRENGTH_COLUMN: usize = 6;
 
+/// Append, on a line of its own below the gA (or model gf) of a candidate, its
+/// observed over predicted intensity on its species' fitted scale, as `×0.21` (two
+/// significant digits); nothing when the line has no intensity or the species no
+/// scale (and in the position-only ranking).
+fn push_ratio(out: &mut Vec<u8>, evidence: Option<&crate::assign::CandidateEvidence>) {
+    if let Some(ratio) = evidence.and_then(|e| e.observed_to_predicted_intensity) {
+        out.extend_from_slice("\n×".as_bytes());
+        push_significant(out, ratio, 2, false);
+    }
+}
+
 /// The cells of one row: their texts one after the other, and where each ends.
 #[derive(Default)]
 struct Cells {
@@ -95,6 +106,8 @@ struct Layout<'a> {
     strengths: bool,
     /// A column of published gA values (compiled spectra).
     published: bool,
+    /// Widest configuration on one line of a label cell (broken after a `.`).
+    label_width: usize,
     /// Shortened labels of the levels of each predicted line, made when first shown.
     labels: Vec<OnceLock<(String, String)>>,
 }
@@ -204,11 +217,20 @@ impl<'a> Layout<'a> {
             with_unit(cells);
         }
         cells.end();
-        cells.push(&c.lower.species);
+        cells.text.extend_from_slice(c.lower.species.as_bytes());
+        if let Some(evidence) = &c.candidate.evidence {
+            cells.text.push(b'\n');
+            cells
+                .text
+                .extend_from_slice(evidence.species_verdict.name().as_bytes());
+        }
+        cells.end();
         let (lower, upper) = self.labels[c.candidate.prediction].get_or_init(|| {
             let levels = self.rendered.report.predictions.levels();
             match (levels.get(c.line.lower), levels.get(c.line.upper)) {
-                (Some(lower), Some(upper)) => shortened(&lower.label, &upper.label),
+                (Some(lower), Some(upper)) => {
+                    shortened(&lower.label, &upper.label, self.label_width)
+                }
                 _ => (String::new(), String::new()),
             }
         });
@@ -222,6 +244,7 @@ impl<'a> Layout<'a> {
             {
                 push_significant(&mut cells.text, gf, 2, false);
             }
+            push_ratio(&mut cells.text, c.candidate.evidence.as_ref());
             cells.end();
         }
         if self.published {
@@ -229,6 +252,7 @@ impl<'a> Layout<'a> {
                 cells
                     .text
                     .extend_from_slice(format!("{:.1e}", probability.ga_s1()).as_bytes());
+                push_ratio(&mut cells.text, c.candidate.evidence.as_ref());
             }
             cells.end();
         }
@@ -375,7 +399,7 @@ impl<'a> Layout<'a> {
 }
 
 impl<'a> Layout<'a> {
-    fn new(report: &'a AssignReport<'a>, options: &TableOptions) -> Layout<'a> {
+    fn new(report: &'a AssignReport<'a>, options: &TableOptions, label_width: usize) -> Layout<'a> {
         let lines = &report.list.lines;
         let describe = |given: &GivenPosition| match given {
             GivenPosition::Wavelength { unit, medium, .. } => format!("{medium} λ, {unit}"),
@@ -412,6 +436,7 @@ impl<'a> Layout<'a> {
             any_line(&|l| l.relative_strength.is_some() && l.transition_probability.is_none());
         let published = any_line(&|l| l.transition_probability.is_some());
         Layout {
+            label_width,
             rendered: Rendered::new(report),
             options: *options,
             common_unit,
@@ -431,7 +456,7 @@ pub(super) fn by_both_writers(
     report: &AssignReport<'_>,
     options: &TableOptions,
 ) -> (String, String) {
-    let layout = Layout::new(report, options);
+    let layout = Layout::new(report, options, LABEL_WIDTH);
     let mut ours = Vec::new();
     let _ = layout.write(&mut ours);
     let ours = String::from_utf8(ours).unwrap_or_default();
@@ -460,7 +485,7 @@ pub fn write_assign_table<W: Write + ?Sized>(
     options: &TableOptions,
     out: &mut W,
 ) -> io::Result<()> {
-    let layout = Layout::new(report, options);
+    let mut layout = Layout::new(report, options, LABEL_WIDTH);
     let mut text = String::new();
     for line in report.description() {
         text.push_str(&wrap(&line, usize::from(options.width).max(40)));
@@ -477,10 +502,20 @@ pub fn write_assign_table<W: Write + ?Sized>(
         report.assignments.len()
     };
     if shown <= WRAPPED_ROWS {
-        let widths = layout.widths();
-        let natural = widths.iter().sum::<usize>() + 2 * widths.len().saturating_sub(1);
-        if natural > usize::from(options.width) {
-            return out.write_all(layout.wrapped().as_bytes());
+        // Too wide: first break the configurations after more of their dots
+        // (labels grow a line, numbers stay whole), then let comfy-table wrap.
+        let mut label_width = LABEL_WIDTH;
+        loop {
+            let widths = layout.widths();
+            let natural = widths.iter().sum::<usize>() + 2 * widths.len().saturating_sub(1);
+            if natural <= usize::from(options.width) {
+                break;
+            }
+            if label_width <= NARROWEST_LABEL_WIDTH {
+                return out.write_all(layout.wrapped().as_bytes());
+            }
+            label_width -= 1;
+            layout = Layout::new(report, options, label_width);
         }
     }
     layout.write(out)
@@ -565,7 +600,7 @@ fn push_deviation(out: &mut Vec<u8>, deviation_cm1: f64) {
 
 /// The two labels on two lines each (configuration; term and J), without the
 /// subshells that are closed in both (kept when nothing else would remain).
-fn shortened(lower: &LevelLabel, upper: &LevelLabel) -> (String, String) {
+fn shortened(lower: &LevelLabel, upper: &LevelLabel, width: usize) -> (String, String) {
     let closed = |c: &Configuration| -> Vec<(u32, u32)> {
         c.subshells()
             .filter(|s| s.is_closed())
@@ -593,7 +628,7 @@ fn shortened(lower: &LevelLabel, upper: &LevelLabel) -> (String, String) {
         };
         format!(
             "{}\n{} {}",
-            break_at_dots(&configuration.to_string(), LABEL_WIDTH),
+            break_at_dots(&configuration.to_string(), width),
             label.term,
             label.j
         )
@@ -604,6 +639,10 @@ fn shortened(lower: &LevelLabel, upper: &LevelLabel) -> (String, String) {
 /// Widest configuration printed on one line of the table; longer ones are broken
 /// after a `.` (17 keeps the pair-coupled Ne I and Ar I labels on one line).
 const LABEL_WIDTH: usize = 17;
+
+/// Narrowest the configurations are broken to before a table too wide for the
+/// terminal has its cells wrapped (a pair-coupled core `(2P°<3/2>).` is 11).
+const NARROWEST_LABEL_WIDTH: usize = 11;
 
 /// `text` broken into lines of at most `width` characters after `.` separators (a
 /// longer segment stays whole).
