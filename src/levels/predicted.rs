@@ -9,6 +9,7 @@
 
 use serde::{Deserialize, Serialize};
 
+pub use super::accuracy::AccuracyCode;
 use super::e1::{SelectionRules, TransitionFlags};
 use super::table::Level;
 use crate::notation::Species;
@@ -88,70 +89,6 @@ impl TransitionProbability {
     /// Data 38, 565, eq. 3), from the constants of [`crate::transitions`].
     pub fn gf(&self, wavenumber_cm1: f64) -> f64 {
         crate::transitions::gf_from_ga(self.ga_s1(), wavenumber_cm1)
-    }
-}
-
-/// The accuracy codes of the NIST ASD transition probabilities, with the upper bound
-/// of the relative uncertainty of A each stands for (ASD's line-data help page;
-/// values from memory): AAA ≤ 0.3 %, AA ≤ 1 %, A+ ≤ 2 %, A ≤ 3 %, B+ ≤ 7 %, B ≤ 10 %,
-/// C+ ≤ 18 %, C ≤ 25 %, D+ ≤ 40 %, D ≤ 50 %, E > 50 %.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Deserialize)]
-pub enum AccuracyCode {
-    /// ≤ 0.3 %.
-    AAA,
-    /// ≤ 1 %.
-    AA,
-    /// ≤ 2 %.
-    APlus,
-    /// ≤ 3 %.
-    A,
-    /// ≤ 7 %.
-    BPlus,
-    /// ≤ 10 %.
-    B,
-    /// ≤ 18 %.
-    CPlus,
-    /// ≤ 25 %.
-    C,
-    /// ≤ 40 %.
-    DPlus,
-    /// ≤ 50 %.
-    D,
-    /// > 50 %.
-    E,
-}
-
-impl AccuracyCode {
-    const NAMES: [(AccuracyCode, &'static str, f64); 11] = [
-        (AccuracyCode::AAA, "AAA", 0.003),
-        (AccuracyCode::AA, "AA", 0.01),
-        (AccuracyCode::APlus, "A+", 0.02),
-        (AccuracyCode::A, "A", 0.03),
-        (AccuracyCode::BPlus, "B+", 0.07),
-        (AccuracyCode::B, "B", 0.10),
-        (AccuracyCode::CPlus, "C+", 0.18),
-        (AccuracyCode::C, "C", 0.25),
-        (AccuracyCode::DPlus, "D+", 0.40),
-        (AccuracyCode::D, "D", 0.50),
-        (AccuracyCode::E, "E", f64::INFINITY),
-    ];
-
-    /// The code as printed (`A+`).
-    pub fn name(self) -> &'static str {
-        Self::NAMES.iter().find(|n| n.0 == self).map_or("", |n| n.1)
-    }
-
-    /// Read a printed code.
-    pub fn from_name(name: &str) -> Option<AccuracyCode> {
-        Self::NAMES.iter().find(|n| n.1 == name).map(|n| n.0)
-    }
-
-    /// The upper bound of the relative uncertainty of A (infinite for E).
-    pub fn relative_uncertainty(self) -> f64 {
-        Self::NAMES
-            .iter()
-            .find(|n| n.0 == self)
-            .map_or(f64::INFINITY, |n| n.2)
     }
 }
 
@@ -452,11 +389,16 @@ impl Predictions {
             }
             let offset = levels.len();
             levels.extend(set.levels);
-            lines.extend(set.lines.into_iter().map(|line| PredictedLine {
-                lower: line.lower + offset,
-                upper: line.upper + offset,
-                ..line
-            }));
+            lines.push(
+                set.lines
+                    .into_iter()
+                    .map(|line| PredictedLine {
+                        lower: line.lower + offset,
+                        upper: line.upper + offset,
+                        ..line
+                    })
+                    .collect::<Vec<_>>(),
+            );
             for s in set.species {
                 notes.push((s.species, s.notes));
                 origins.push(SpeciesOrigin {
@@ -466,7 +408,9 @@ impl Predictions {
                 });
             }
         }
-        let mut combined = Predictions::new(levels, lines, origins)?;
+        // Each set's lines are sorted (a set is built by `new`): merged, not sorted
+        // again.
+        let mut combined = Predictions::new(levels, merged_by_wavenumber(lines), origins)?;
         combined.span_cm1 = widest(combined.span_cm1, span);
         for (species, notes) in notes {
             for note in notes {
@@ -561,6 +505,53 @@ fn sorted_by_wavenumber(lines: Vec<PredictedLine>) -> Vec<PredictedLine> {
         .into_iter()
         .filter_map(|(_, i)| slots.get_mut(i).and_then(Option::take))
         .collect()
+}
+
+/// The lines of several sets, each sorted by wavenumber, merged into one sorted
+/// list; equal wavenumbers keep the order of the sets, then each set's order (the
+/// result of a stable sort of the sets one after another, in O(n log k) for k sets).
+fn merged_by_wavenumber(sets: Vec<Vec<PredictedLine>>) -> Vec<PredictedLine> {
+    use std::cmp::{Ordering, Reverse};
+    use std::collections::BinaryHeap;
+    /// The next line of one set: its wavenumber and the set's place.
+    struct Head(f64, usize);
+    impl PartialEq for Head {
+        fn eq(&self, other: &Self) -> bool {
+            self.cmp(other) == Ordering::Equal
+        }
+    }
+    impl Eq for Head {}
+    impl PartialOrd for Head {
+        fn partial_cmp(&self, other: &Self) -> Option<Ordering> {
+            Some(self.cmp(other))
+        }
+    }
+    impl Ord for Head {
+        fn cmp(&self, other: &Self) -> Ordering {
+            self.0.total_cmp(&other.0).then(self.1.cmp(&other.1))
+        }
+    }
+    let total = sets.iter().map(Vec::len).sum();
+    let mut iters: Vec<std::iter::Peekable<std::vec::IntoIter<PredictedLine>>> =
+        sets.into_iter().map(|s| s.into_iter().peekable()).collect();
+    let mut heap: BinaryHeap<Reverse<Head>> = iters
+        .iter_mut()
+        .enumerate()
+        .filter_map(|(i, it)| it.peek().map(|l| Reverse(Head(l.wavenumber_cm1, i))))
+        .collect();
+    let mut merged = Vec::with_capacity(total);
+    while let Some(Reverse(Head(_, set))) = heap.pop() {
+        let Some(it) = iters.get_mut(set) else {
+            continue;
+        };
+        if let Some(line) = it.next() {
+            merged.push(line);
+        }
+        if let Some(next) = it.peek() {
+            heap.push(Reverse(Head(next.wavenumber_cm1, set)));
+        }
+    }
+    merged
 }
 
 /// The smallest range holding both spans.
