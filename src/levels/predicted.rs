@@ -389,16 +389,11 @@ impl Predictions {
             }
             let offset = levels.len();
             levels.extend(set.levels);
-            lines.push(
-                set.lines
-                    .into_iter()
-                    .map(|line| PredictedLine {
-                        lower: line.lower + offset,
-                        upper: line.upper + offset,
-                        ..line
-                    })
-                    .collect::<Vec<_>>(),
-            );
+            lines.extend(set.lines.into_iter().map(|line| PredictedLine {
+                lower: line.lower + offset,
+                upper: line.upper + offset,
+                ..line
+            }));
             for s in set.species {
                 notes.push((s.species, s.notes));
                 origins.push(SpeciesOrigin {
@@ -408,9 +403,7 @@ impl Predictions {
                 });
             }
         }
-        // Each set's lines are sorted (a set is built by `new`): merged, not sorted
-        // again.
-        let mut combined = Predictions::new(levels, merged_by_wavenumber(lines), origins)?;
+        let mut combined = Predictions::new(levels, lines, origins)?;
         combined.span_cm1 = widest(combined.span_cm1, span);
         for (species, notes) in notes {
             for note in notes {
@@ -505,53 +498,6 @@ fn sorted_by_wavenumber(lines: Vec<PredictedLine>) -> Vec<PredictedLine> {
         .into_iter()
         .filter_map(|(_, i)| slots.get_mut(i).and_then(Option::take))
         .collect()
-}
-
-/// The lines of several sets, each sorted by wavenumber, merged into one sorted
-/// list; equal wavenumbers keep the order of the sets, then each set's order (the
-/// result of a stable sort of the sets one after another, in O(n log k) for k sets).
-fn merged_by_wavenumber(sets: Vec<Vec<PredictedLine>>) -> Vec<PredictedLine> {
-    use std::cmp::{Ordering, Reverse};
-    use std::collections::BinaryHeap;
-    /// The next line of one set: its wavenumber and the set's place.
-    struct Head(f64, usize);
-    impl PartialEq for Head {
-        fn eq(&self, other: &Self) -> bool {
-            self.cmp(other) == Ordering::Equal
-        }
-    }
-    impl Eq for Head {}
-    impl PartialOrd for Head {
-        fn partial_cmp(&self, other: &Self) -> Option<Ordering> {
-            Some(self.cmp(other))
-        }
-    }
-    impl Ord for Head {
-        fn cmp(&self, other: &Self) -> Ordering {
-            self.0.total_cmp(&other.0).then(self.1.cmp(&other.1))
-        }
-    }
-    let total = sets.iter().map(Vec::len).sum();
-    let mut iters: Vec<std::iter::Peekable<std::vec::IntoIter<PredictedLine>>> =
-        sets.into_iter().map(|s| s.into_iter().peekable()).collect();
-    let mut heap: BinaryHeap<Reverse<Head>> = iters
-        .iter_mut()
-        .enumerate()
-        .filter_map(|(i, it)| it.peek().map(|l| Reverse(Head(l.wavenumber_cm1, i))))
-        .collect();
-    let mut merged = Vec::with_capacity(total);
-    while let Some(Reverse(Head(_, set))) = heap.pop() {
-        let Some(it) = iters.get_mut(set) else {
-            continue;
-        };
-        if let Some(line) = it.next() {
-            merged.push(line);
-        }
-        if let Some(next) = it.peek() {
-            heap.push(Reverse(Head(next.wavenumber_cm1, set)));
-        }
-    }
-    merged
 }
 
 /// The smallest range holding both spans.
