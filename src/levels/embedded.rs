@@ -6,8 +6,10 @@
 //! Reader and NIST ASD Team; retrievals of 2013 to 2017, one per spectrum) by
 //! `reference-levels/make_tables.py`; the files and `reference-levels/SOURCES.md` say
 //! which release, what the uncertainties assume, and what was left out. They are
-//! parsed when used; tests parse every one, so a bad table is caught before
-//! release, never at a user's run.
+//! read at build time (`build.rs`, with the readers of [`super::read_level_table`]):
+//! a bad table stops the build with a message naming its file, line and column, and
+//! the program carries the levels, their warnings and the published lines in a
+//! compact binary form ([`super::compiled_form`]), decoded when a spectrum is used.
 //!
 //! [`compiled_predictions`] gives the Ritz lines of the chosen spectra between
 //! [`COMPILED_RANGE_NM`] (100 nm to 2.5 µm in vacuum), each with its published A_ki
@@ -15,10 +17,12 @@
 
 use std::collections::HashMap;
 
-use super::predicted::{AccuracyCode, PredictionError, Predictions, TransitionProbability};
+use super::compiled_form::CompiledSpectrum;
+use super::predicted::{PredictionError, Predictions, TransitionProbability};
+use super::rates::PublishedLine;
 use super::reach::{ListReach, Reach};
 use super::ritz::{WavenumberRange, predict_levels};
-use super::table::{LevelTable, LevelTableError, read_level_table};
+use super::table::{Level, LevelTable, TableWarning};
 use crate::location::Location;
 use crate::notation::Species;
 
@@ -29,13 +33,12 @@ pub struct EmbeddedTable {
     pub species: &'static str,
     /// File name of the level table in `reference-levels/`.
     pub file: &'static str,
-    /// The level table, CSV.
-    pub text: &'static str,
-    /// The classified E1 lines of the source and their transition probabilities
-    /// (`<file stem>-lines.csv`: columns `lower,upper,A_s1,accuracy`, the levels by
-    /// their data row in the level table, A_s1 blank when none is published), when
-    /// the source has a line list.
-    pub rates: Option<&'static str>,
+    /// The level table and the classified E1 lines of the source with their
+    /// transition probabilities (`<file stem>-lines.csv`, when the source has a line
+    /// list), read at build time, in the form of [`super::compiled_form`].
+    pub compiled: &'static [u8],
+    /// The citation of the source, from the table's first comment line.
+    pub citation: &'static str,
 }
 
 /// Every compiled spectrum, lightest element first, then by ionisation stage.
@@ -43,204 +46,225 @@ pub const EMBEDDED_TABLES: [EmbeddedTable; 29] = [
     EmbeddedTable {
         species: "H I",
         file: "HI.csv",
-        text: include_str!("../../reference-levels/HI.csv"),
-        rates: Some(include_str!("../../reference-levels/HI-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/HI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/HI.citation")),
     },
     EmbeddedTable {
         species: "He I",
         file: "HeI.csv",
-        text: include_str!("../../reference-levels/HeI.csv"),
-        rates: Some(include_str!("../../reference-levels/HeI-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/HeI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/HeI.citation")),
     },
     EmbeddedTable {
         species: "Li I",
         file: "LiI.csv",
-        text: include_str!("../../reference-levels/LiI.csv"),
-        rates: Some(include_str!("../../reference-levels/LiI-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/LiI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/LiI.citation")),
     },
     EmbeddedTable {
         species: "C I",
         file: "CI.csv",
-        text: include_str!("../../reference-levels/CI.csv"),
-        rates: Some(include_str!("../../reference-levels/CI-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/CI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/CI.citation")),
     },
     EmbeddedTable {
         species: "C II",
         file: "CII.csv",
-        text: include_str!("../../reference-levels/CII.csv"),
-        rates: Some(include_str!("../../reference-levels/CII-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/CII.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/CII.citation")),
     },
     EmbeddedTable {
         species: "N I",
         file: "NI.csv",
-        text: include_str!("../../reference-levels/NI.csv"),
-        rates: Some(include_str!("../../reference-levels/NI-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/NI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/NI.citation")),
     },
     EmbeddedTable {
         species: "N II",
         file: "NII.csv",
-        text: include_str!("../../reference-levels/NII.csv"),
-        rates: Some(include_str!("../../reference-levels/NII-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/NII.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/NII.citation")),
     },
     EmbeddedTable {
         species: "O I",
         file: "OI.csv",
-        text: include_str!("../../reference-levels/OI.csv"),
-        rates: Some(include_str!("../../reference-levels/OI-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/OI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/OI.citation")),
     },
     EmbeddedTable {
         species: "O II",
         file: "OII.csv",
-        text: include_str!("../../reference-levels/OII.csv"),
-        rates: Some(include_str!("../../reference-levels/OII-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/OII.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/OII.citation")),
     },
     EmbeddedTable {
         species: "Ne I",
         file: "NeI.csv",
-        text: include_str!("../../reference-levels/NeI.csv"),
-        rates: Some(include_str!("../../reference-levels/NeI-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/NeI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/NeI.citation")),
     },
     EmbeddedTable {
         species: "Ne II",
         file: "NeII.csv",
-        text: include_str!("../../reference-levels/NeII.csv"),
-        rates: Some(include_str!("../../reference-levels/NeII-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/NeII.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/NeII.citation")),
     },
     EmbeddedTable {
         species: "Na I",
         file: "NaI.csv",
-        text: include_str!("../../reference-levels/NaI.csv"),
-        rates: Some(include_str!("../../reference-levels/NaI-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/NaI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/NaI.citation")),
     },
     EmbeddedTable {
         species: "Mg I",
         file: "MgI.csv",
-        text: include_str!("../../reference-levels/MgI.csv"),
-        rates: Some(include_str!("../../reference-levels/MgI-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/MgI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/MgI.citation")),
     },
     EmbeddedTable {
         species: "Mg II",
         file: "MgII.csv",
-        text: include_str!("../../reference-levels/MgII.csv"),
-        rates: Some(include_str!("../../reference-levels/MgII-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/MgII.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/MgII.citation")),
     },
     EmbeddedTable {
         species: "Al I",
         file: "AlI.csv",
-        text: include_str!("../../reference-levels/AlI.csv"),
-        rates: Some(include_str!("../../reference-levels/AlI-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/AlI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/AlI.citation")),
     },
     EmbeddedTable {
         species: "Si I",
         file: "SiI.csv",
-        text: include_str!("../../reference-levels/SiI.csv"),
-        rates: Some(include_str!("../../reference-levels/SiI-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/SiI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/SiI.citation")),
     },
     EmbeddedTable {
         species: "Ar I",
         file: "ArI.csv",
-        text: include_str!("../../reference-levels/ArI.csv"),
-        rates: Some(include_str!("../../reference-levels/ArI-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/ArI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/ArI.citation")),
     },
     EmbeddedTable {
         species: "Ar II",
         file: "ArII.csv",
-        text: include_str!("../../reference-levels/ArII.csv"),
-        rates: Some(include_str!("../../reference-levels/ArII-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/ArII.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/ArII.citation")),
     },
     EmbeddedTable {
         species: "K I",
         file: "KI.csv",
-        text: include_str!("../../reference-levels/KI.csv"),
-        rates: Some(include_str!("../../reference-levels/KI-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/KI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/KI.citation")),
     },
     EmbeddedTable {
         species: "Ca I",
         file: "CaI.csv",
-        text: include_str!("../../reference-levels/CaI.csv"),
-        rates: Some(include_str!("../../reference-levels/CaI-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/CaI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/CaI.citation")),
     },
     EmbeddedTable {
         species: "Ca II",
         file: "CaII.csv",
-        text: include_str!("../../reference-levels/CaII.csv"),
-        rates: Some(include_str!("../../reference-levels/CaII-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/CaII.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/CaII.citation")),
     },
     EmbeddedTable {
         species: "Fe I",
         file: "FeI.csv",
-        text: include_str!("../../reference-levels/FeI.csv"),
-        rates: Some(include_str!("../../reference-levels/FeI-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/FeI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/FeI.citation")),
     },
     EmbeddedTable {
         species: "Fe II",
         file: "FeII.csv",
-        text: include_str!("../../reference-levels/FeII.csv"),
-        rates: None,
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/FeII.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/FeII.citation")),
     },
     EmbeddedTable {
         species: "Cu I",
         file: "CuI.csv",
-        text: include_str!("../../reference-levels/CuI.csv"),
-        rates: Some(include_str!("../../reference-levels/CuI-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/CuI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/CuI.citation")),
     },
     EmbeddedTable {
         species: "Zn I",
         file: "ZnI.csv",
-        text: include_str!("../../reference-levels/ZnI.csv"),
-        rates: None,
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/ZnI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/ZnI.citation")),
     },
     EmbeddedTable {
         species: "Kr II",
         file: "KrII.csv",
-        text: include_str!("../../reference-levels/KrII.csv"),
-        rates: None,
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/KrII.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/KrII.citation")),
     },
     EmbeddedTable {
         species: "Cd I",
         file: "CdI.csv",
-        text: include_str!("../../reference-levels/CdI.csv"),
-        rates: Some(include_str!("../../reference-levels/CdI-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/CdI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/CdI.citation")),
     },
     EmbeddedTable {
         species: "W I",
         file: "WI.csv",
-        text: include_str!("../../reference-levels/WI.csv"),
-        rates: None,
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/WI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/WI.citation")),
     },
     EmbeddedTable {
         species: "Hg I",
         file: "HgI.csv",
-        text: include_str!("../../reference-levels/HgI.csv"),
-        rates: Some(include_str!("../../reference-levels/HgI-lines.csv")),
+        compiled: include_bytes!(concat!(env!("OUT_DIR"), "/HgI.bin")),
+        citation: include_str!(concat!(env!("OUT_DIR"), "/HgI.citation")),
     },
 ];
+
+/// The published lines of a spectrum by the pair of their levels' indices (lower
+/// index first), with the transition probability when one is published.
+type PublishedRates = HashMap<(usize, usize), Option<TransitionProbability>>;
+
+/// The levels of a compiled spectrum and its warnings as (line, column, problem).
+type LevelsAndWarnings = (Vec<Level>, Vec<(usize, Option<String>, String)>);
+
+impl CompiledSpectrum {
+    fn levels_and_warnings(self) -> LevelsAndWarnings {
+        (self.levels, self.warnings)
+    }
+}
+
+/// The published lines by pair (a line given twice keeps its last row).
+fn rates_by_pair(published: Vec<PublishedLine>) -> PublishedRates {
+    published
+        .into_iter()
+        .map(|l| {
+            (
+                (l.lower.min(l.upper), l.lower.max(l.upper)),
+                l.a_ki_s1.map(|a_ki_s1| TransitionProbability {
+                    a_ki_s1,
+                    g_upper: 0,
+                    accuracy: l.accuracy,
+                }),
+            )
+        })
+        .collect()
+}
 
 /// The vacuum wavelengths (nm) between which the compiled spectra are predicted:
 /// 100 nm to 2.5 µm, the range of their published line lists.
 pub const COMPILED_RANGE_NM: (f64, f64) = (100.0, 2500.0);
 
-/// A compiled table of transition probabilities that cannot be read (a defect of the
-/// build, caught by the tests).
-#[derive(Debug, Clone, PartialEq, thiserror::Error)]
-#[error("{location}: {problem}")]
-pub struct RatesError {
-    /// The row.
-    pub location: Location,
-    /// What is wrong.
-    pub problem: String,
-}
-
 /// Reading or predicting a compiled spectrum failed (a defect of the build).
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 #[non_exhaustive]
 pub enum CompiledError {
-    /// The level table.
-    #[error(transparent)]
-    Levels(#[from] LevelTableError),
-    /// The transition probabilities.
-    #[error(transparent)]
-    Rates(#[from] RatesError),
+    /// The compiled form cannot be decoded.
+    #[error("the compiled form of {spectrum} cannot be read: {problem}")]
+    Form {
+        /// The spectrum.
+        spectrum: &'static str,
+        /// What went wrong.
+        problem: String,
+    },
     /// The predictions.
     #[error(transparent)]
     Predictions(#[from] PredictionError),
@@ -263,16 +287,43 @@ impl EmbeddedTable {
 
     /// The citation of the source, from the table's first comment line.
     pub fn citation(&self) -> &'static str {
-        self.text
-            .lines()
-            .next()
-            .and_then(|l| l.split_once("Source: "))
-            .map_or("", |(_, s)| s.trim_end_matches('.'))
+        self.citation
     }
 
-    /// Parse the level table.
-    pub fn load(&self) -> Result<LevelTable, LevelTableError> {
-        read_level_table(self.text.as_bytes(), &self.source_name())
+    /// The compiled form, decoded.
+    fn decode(&self) -> Result<CompiledSpectrum, CompiledError> {
+        CompiledSpectrum::decode(self.compiled).map_err(|e| CompiledError::Form {
+            spectrum: self.species,
+            problem: e.to_string(),
+        })
+    }
+
+    /// The level table, as read from `reference-levels/` at build time, with its
+    /// warnings.
+    pub fn load(&self) -> Result<LevelTable, CompiledError> {
+        Ok(self.level_table(self.decode()?.levels_and_warnings()))
+    }
+
+    fn level_table(&self, (levels, warnings): LevelsAndWarnings) -> LevelTable {
+        let source = self.source_name();
+        let warnings = warnings
+            .into_iter()
+            .map(|(line, column, problem)| {
+                let location = Location::line(source.clone(), line);
+                TableWarning {
+                    location: match column {
+                        Some(column) => location.column(column),
+                        None => location,
+                    },
+                    problem,
+                }
+            })
+            .collect();
+        LevelTable {
+            source,
+            levels,
+            warnings,
+        }
     }
 
     /// The published lines, by the 0-based indices of their two levels in the table's
@@ -280,74 +331,22 @@ impl EmbeddedTable {
     /// published (empty when the source has no line list).
     pub fn transition_rates(
         &self,
-    ) -> Result<HashMap<(usize, usize), Option<TransitionProbability>>, RatesError> {
-        let mut rates = HashMap::new();
-        let Some(text) = self.rates else {
-            return Ok(rates);
-        };
-        let source = format!("<embedded {} transition probabilities>", self.species);
-        let mut header_seen = false;
-        for (number, line) in text.lines().enumerate() {
-            let bad = |problem: String| RatesError {
-                location: Location::line(source.clone(), number + 1),
-                problem,
-            };
-            if line.starts_with('#') || line.trim().is_empty() {
-                continue;
-            }
-            if !header_seen {
-                header_seen = true;
-                if line != "lower,upper,A_s1,accuracy" {
-                    return Err(bad(format!("unexpected header '{line}'")));
-                }
-                continue;
-            }
-            let fields: Vec<&str> = line.split(',').collect();
-            let [lower, upper, a, accuracy] = fields.as_slice() else {
-                return Err(bad(format!("{} fields where 4 are expected", fields.len())));
-            };
-            let row = |text: &str| {
-                text.parse::<usize>()
-                    .ok()
-                    .and_then(|r| r.checked_sub(1))
-                    .ok_or_else(|| bad(format!("'{text}' is not a level row")))
-            };
-            let a_ki_s1 = if a.is_empty() {
-                None
-            } else {
-                Some(
-                    a.parse::<f64>()
-                        .ok()
-                        .filter(|v| v.is_finite() && *v > 0.0)
-                        .ok_or_else(|| bad(format!("'{a}' is not a transition probability")))?,
-                )
-            };
-            let accuracy = if accuracy.is_empty() {
-                None
-            } else {
-                Some(
-                    AccuracyCode::from_name(accuracy)
-                        .ok_or_else(|| bad(format!("'{accuracy}' is not an accuracy code")))?,
-                )
-            };
-            let (i, k) = (row(lower)?, row(upper)?);
-            rates.insert(
-                (i.min(k), i.max(k)),
-                a_ki_s1.map(|a_ki_s1| TransitionProbability {
-                    a_ki_s1,
-                    g_upper: 0,
-                    accuracy,
-                }),
-            );
-        }
-        Ok(rates)
+    ) -> Result<HashMap<(usize, usize), Option<TransitionProbability>>, CompiledError> {
+        Ok(rates_by_pair(self.decode()?.published))
+    }
+
+    /// The level table and the published lines, from one decoding.
+    fn load_with_rates(&self) -> Result<(LevelTable, PublishedRates), CompiledError> {
+        let mut compiled = self.decode()?;
+        let rates = rates_by_pair(std::mem::take(&mut compiled.published));
+        Ok((self.level_table(compiled.levels_and_warnings()), rates))
     }
 
     /// The Ritz predictions of this spectrum within [`COMPILED_RANGE_NM`], with the
     /// published transition probabilities.
     pub fn predictions(&self) -> Result<Predictions, CompiledError> {
-        let table = self.load()?;
-        self.predictions_of(table, None)
+        let (table, rates) = self.load_with_rates()?;
+        self.predictions_of(table, &rates, None)
     }
 
     /// [`EmbeddedTable::predictions`] from the table already loaded, keeping only the
@@ -355,16 +354,16 @@ impl EmbeddedTable {
     fn predictions_of(
         &self,
         table: LevelTable,
+        rates: &PublishedRates,
         keep: Option<&Reach>,
     ) -> Result<Predictions, CompiledError> {
-        let rates = self.transition_rates()?;
         let warnings = table.warnings.len();
         let mut predictions = predict_levels(
             table.levels,
             &table.source,
             Some(compiled_range()),
             keep,
-            Some(&rates),
+            Some(rates),
         )?;
         let listed = predictions
             .summary(self.spectrum())
@@ -436,20 +435,20 @@ pub fn compiled_predictions_near(
     use rayon::prelude::*;
     let loaded = tables
         .par_iter()
-        .map(|t| t.load().map(|table| (*t, table)))
+        .map(|t| t.load_with_rates().map(|(table, rates)| (*t, table, rates)))
         .collect::<Result<Vec<_>, _>>()?;
     // A Ritz line's uncertainty √(u₁² + u₂²) is at most √2 times the largest level
     // uncertainty of its table.
     let bound = loaded
         .iter()
-        .flat_map(|(_, table)| table.levels.iter().map(|l| l.uncertainty_cm1))
+        .flat_map(|(_, table, _)| table.levels.iter().map(|l| l.uncertainty_cm1))
         .fold(other_uncertainty_cm1, |m, u| {
             m.max(u * std::f64::consts::SQRT_2)
         });
     let keep = reach.with_prediction_uncertainty(bound);
     let sets = loaded
         .into_par_iter()
-        .map(|(t, table)| t.predictions_of(table, Some(&keep)))
+        .map(|(t, table, rates)| t.predictions_of(table, &rates, Some(&keep)))
         .collect::<Result<Vec<_>, _>>()?;
     Ok(Predictions::combine(sets)?)
 }
@@ -481,6 +480,51 @@ mod tests {
                 rates
                     .keys()
                     .all(|&(i, k)| i < levels.levels.len() && k < levels.levels.len())
+            );
+        }
+    }
+
+    // The published tables are the authority: the compiled form built into the
+    // program must be exactly what the program's readers make of each file of
+    // reference-levels/ (levels with their marks, the warnings kept with them, the
+    // published lines and their A_ki, the citation), and every table of the
+    // directory must be compiled in.
+    #[test]
+    fn the_compiled_form_is_what_the_readers_make_of_the_published_files() {
+        use super::super::rates::read_rates;
+        use super::super::table::read_level_table;
+        let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("reference-levels");
+        let mut files: Vec<String> = std::fs::read_dir(&dir)
+            .unwrap()
+            .map(|e| e.unwrap().file_name().into_string().unwrap())
+            .filter(|n| n.ends_with(".csv") && !n.ends_with("-lines.csv"))
+            .collect();
+        files.sort();
+        let mut compiled: Vec<String> = EMBEDDED_TABLES.iter().map(|t| t.file.into()).collect();
+        compiled.sort();
+        assert_eq!(files, compiled);
+        for table in EMBEDDED_TABLES {
+            let text = std::fs::read_to_string(dir.join(table.file)).unwrap();
+            let fresh = read_level_table(text.as_bytes(), &table.source_name()).unwrap();
+            let built = table.load().unwrap();
+            assert_eq!(built, fresh, "{}", table.file);
+            assert_eq!(built.warnings, fresh.warnings, "{}", table.file);
+            let lines = dir.join(table.file.replace(".csv", "-lines.csv"));
+            let published = match std::fs::read_to_string(&lines) {
+                Ok(text) => read_rates(&text, "x").unwrap(),
+                Err(_) => Vec::new(),
+            };
+            assert_eq!(
+                table.decode().unwrap().published,
+                published,
+                "{}",
+                table.file
+            );
+            let first = text.lines().next().unwrap();
+            assert!(!table.citation().is_empty());
+            assert!(
+                first.contains(&format!("Source: {}", table.citation())),
+                "{first}"
             );
         }
     }

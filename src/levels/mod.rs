@@ -33,6 +33,8 @@
 //! assert_eq!(upper.label.to_string(), "1s.3d 1D 2");
 //! ```
 
+mod accuracy;
+mod compiled_form;
 pub(crate) mod csv_text;
 pub mod e1;
 mod embedded;
@@ -41,6 +43,7 @@ mod label;
 pub mod optimize;
 mod pairs;
 mod predicted;
+mod rates;
 mod reach;
 mod ritz;
 pub mod search;
@@ -48,15 +51,15 @@ mod table;
 
 pub use e1::{SelectionRules, TransitionFlags};
 pub use embedded::{
-    COMPILED_RANGE_NM, CompiledError, EMBEDDED_TABLES, EmbeddedTable, RatesError,
-    compiled_predictions, compiled_predictions_near, compiled_range, embedded_stages,
-    embedded_table,
+    COMPILED_RANGE_NM, CompiledError, EMBEDDED_TABLES, EmbeddedTable, compiled_predictions,
+    compiled_predictions_near, compiled_range, embedded_stages, embedded_table,
 };
 pub use label::{LabelError, LevelLabel};
 pub use predicted::{
     AccuracyCode, Listing, PredictedLine, PredictionError, Predictions, SpeciesOrigin,
     SpeciesSummary, TransitionProbability, UnkeptLines,
 };
+pub use rates::{PublishedLine, RATES_HEADER, RatesError, read_rates};
 pub use reach::{ListReach, Reach};
 pub use ritz::{WavenumberRange, predict_from_table, predict_lines, ritz_wavenumber};
 pub use table::{
